@@ -1,0 +1,139 @@
+"""The `optogen` command: run, check, materials, spectra.
+
+Bad input prints one line and exits with status 2, never a traceback.
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+from . import __version__
+from .errors import InputError
+
+EXIT_INPUT = 2
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse, but a usage error is one line and exit status 2."""
+
+    def error(self, message):
+        self.exit(EXIT_INPUT, f"{self.prog}: error: {message} (see {self.prog} --help)\n")
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = _Parser(prog="optogen", description="Carriers in a semiconductor absorber, "
+                                "in the dark and under light.")
+    p.add_argument("--version", action="version", version=f"optogen {__version__}")
+    sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
+
+    r = sub.add_parser("run", help="run a scenario file and report the dark and illuminated states")
+    r.add_argument("scenario", help="scenario file (TOML)")
+    r.add_argument("--json", action="store_true", help="print the result as JSON")
+    r.add_argument("--out", metavar="DIR", help="write JSON/NetCDF/CSV/PNG files into DIR")
+    r.add_argument("--set", metavar="KEY=VALUE", action="append", default=[],
+                   help="override a scenario field, e.g. --set light.suns=0.1 (repeatable)")
+    r.add_argument("--quiet", action="store_true", help="no progress bar")
+    r.add_argument("--workers", type=int, metavar="N", help="run the sweep on a local dask cluster of N workers")
+    r.add_argument("--scheduler", metavar="ADDRESS", help="run the sweep on an existing dask.distributed scheduler")
+    r.add_argument("--yes", action="store_true", help="run a sweep larger than the size limit")
+
+    c = sub.add_parser("check", help="validate a scenario file without running it")
+    c.add_argument("scenario")
+    c.add_argument("--set", metavar="KEY=VALUE", action="append", default=[])
+
+    m = sub.add_parser("materials", help="list the built-in materials, or show one with its sources")
+    m.add_argument("name", nargs="?")
+    m.add_argument("--temperature-K", type=float, default=300.0, dest="temperature_K")
+    m.add_argument("--composition-x", type=float, default=None, dest="composition_x",
+                   help="Cd fraction x for HgCdTe")
+
+    sub.add_parser("spectra", help="list the light sources and standard spectra")
+    return p
+
+
+def _overrides(items):
+    from .scenario import parse_value
+    out = {}
+    for item in items:
+        if "=" not in item:
+            raise InputError("--set", item, "KEY=VALUE, e.g. light.suns=0.1")
+        k, v = item.split("=", 1)
+        out[k.strip()] = parse_value(v.strip())
+    return out
+
+
+def main(argv=None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        return _dispatch(args)
+    except InputError as exc:
+        print(f"optogen: error: {exc}", file=sys.stderr)
+        return EXIT_INPUT
+    except (ValueError, OSError) as exc:
+        print(f"optogen: error: {' '.join(str(exc).split())}", file=sys.stderr)
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        print("optogen: interrupted; no partial files were left", file=sys.stderr)
+        return 130
+
+
+def _dispatch(args) -> int:
+    if args.command == "materials":
+        return _materials(args)
+    if args.command == "spectra":
+        return _spectra()
+    from .scenario import MAX_POINTS_WITHOUT_CONFIRMATION, load_scenario
+    sc = load_scenario(Path(args.scenario), _overrides(args.set))
+    if args.command == "check":
+        from .runner import build
+        build(sc)
+        print(f"{args.scenario}: ok ({sc.n_points} point{'s' if sc.n_points != 1 else ''})")
+        return 0
+    if sc.n_points > MAX_POINTS_WITHOUT_CONFIRMATION and not args.yes:
+        raise InputError("sweep", f"{sc.n_points} points",
+                         f"at most {MAX_POINTS_WITHOUT_CONFIRMATION} without --yes",
+                         "add --yes, and --out DIR to keep the result on disk")
+    from .runner import run
+    from . import report
+    res = run(sc, progress=False if (args.quiet or args.json) else None,
+              workers=args.workers, scheduler=args.scheduler)
+    written = report.write_all(res, Path(args.out)) if args.out else []
+    if args.json:
+        print(json.dumps(res.to_dict(), indent=2, allow_nan=False))
+    else:
+        print(report.summary(res))
+        for path in written:
+            print(f"wrote {path}")
+    return 0
+
+
+def _materials(args) -> int:
+    from . import materials
+    if not args.name:
+        for name in materials.names():
+            print(name)
+        return 0
+    mat = materials.get(args.name, args.composition_x)
+    from .errors import check_range
+    check_range("--temperature-K", args.temperature_K, 0.0, None, low_open=True, unit="K")
+    rows = materials.describe(mat, args.temperature_K)
+    print(f"{mat.name} at {args.temperature_K:g} K")
+    w = max(len(r["field"]) for r in rows)
+    for r in rows:
+        val = r["value"]
+        val = f"{val:.6g}" if isinstance(val, float) else str(val)
+        print(f"  {r['field']:<{w}}  {val:>14} {r.get('unit', ''):<12} {r.get('source', '')}")
+    return 0
+
+
+def _spectra() -> int:
+    from . import light
+    for line in light.names():
+        print(line)
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,278 @@
+"""Writing results to files: JSON, NetCDF, tidy CSV and PNG, each atomically.
+
+Every file is written under a temporary name in the target folder and then
+renamed, so an interrupted run never leaves a half-written file under the
+final name.
+"""
+from __future__ import annotations
+
+import contextlib
+import json
+import os
+import tempfile
+from pathlib import Path
+from typing import Callable
+
+import numpy as np
+import xarray as xr
+
+
+@contextlib.contextmanager
+def atomic_path(final: Path):
+    """Yield a temporary path next to `final`; rename it to `final` on success."""
+    final = Path(final)
+    final.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(prefix=f".{final.name}.", suffix=".part", dir=final.parent)
+    os.close(fd)
+    try:
+        yield Path(tmp)
+        os.replace(tmp, final)
+    finally:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+
+
+def write_text(path: Path, text: str) -> Path:
+    with atomic_path(path) as tmp:
+        tmp.write_text(text, encoding="utf-8")
+    return Path(path)
+
+
+def write_json(path: Path, data) -> Path:
+    return write_text(path, json.dumps(data, indent=2, allow_nan=False) + "\n")
+
+
+def netcdf_ready(ds: xr.Dataset) -> xr.Dataset:
+    """A copy that the scipy (netCDF3) engine can store: bools as int8, strings as fixed bytes."""
+    out = ds.copy()
+    for name, da in out.data_vars.items():
+        if da.dtype.kind == "b":
+            out[name] = da.astype("int8")
+            out[name].attrs.update(da.attrs, flag_values="0 1", flag_meanings="false true")
+        elif da.dtype.kind in "OU":
+            out[name] = da.astype(str)
+            out[name].attrs.update(da.attrs)
+    return out
+
+
+def write_netcdf(path: Path, ds: xr.Dataset) -> Path:
+    """NetCDF3 via scipy, readable by xarray.open_dataset with optogen's own dependencies."""
+    with atomic_path(path) as tmp:
+        netcdf_ready(ds).to_netcdf(tmp, engine="scipy")
+    return Path(path)
+
+
+def write_csv(path: Path, ds: xr.Dataset) -> Path:
+    """Tidy CSV: one row per grid point, one column per quantity (unit in the name)."""
+    df = ds.to_dataframe().reset_index() if ds.sizes else ds.expand_dims("point").to_dataframe().reset_index(drop=True)
+    with atomic_path(path) as tmp:
+        df.to_csv(tmp, index=False, float_format="%.10g")
+    return Path(path)
+
+
+def write_table(path: Path, columns: dict[str, np.ndarray]) -> Path:
+    """A CSV of equal-length columns (curves: J-V, lifetime, profile)."""
+    import pandas as pd
+    with atomic_path(path) as tmp:
+        pd.DataFrame({k: np.asarray(v) for k, v in columns.items()}).to_csv(tmp, index=False, float_format="%.10g")
+    return Path(path)
+
+
+def write_figure(path: Path, fig) -> Path:
+    with atomic_path(path) as tmp:
+        fig.savefig(tmp, format="png", dpi=120, bbox_inches="tight")
+    return Path(path)
+
+
+# ---------------------------------------------------------------------------
+# Terminal summary
+# ---------------------------------------------------------------------------
+
+CAUTION_ESTIMATE = ("Estimates from published models, not measurements; anything that feeds an "
+                    "installation follows local codes and licensed practice.")
+CAUTION_LIGHT = ("Laser / concentrated light: beams and focused sunlight can injure eyes and skin "
+                 "at these powers; use the eyewear, enclosures and interlocks your laser-safety "
+                 "rules require.")
+CAUTION_COLD = ("Cryogenic temperature: liquid nitrogen and cold surfaces cause cold burns, and "
+                "boiling cryogen builds pressure and displaces oxygen; follow your site's cryogen rules.")
+
+
+def cautions(sc) -> list[str]:
+    """The safety notes that apply to a scenario."""
+    out = [CAUTION_ESTIMATE]
+    light = sc.data.get("light", {}) or {}
+    src = str(light.get("source", "")).lower()
+    swept = {a.key: a.values for a in sc.sweep}
+    suns = np.max(swept.get("light.suns", light.get("suns", 0.0)))
+    irr = np.max(swept.get("light.irradiance_W_m2", light.get("irradiance_W_m2", 0.0)))
+    if src in ("laser", "led") or suns > 2 or irr > 2000:
+        out.append(CAUTION_LIGHT)
+    temps = [np.min(swept.get("absorber.temperature_K", sc.get("absorber.temperature_K", 300.0)))]
+    if "background" in sc.data:
+        temps.append(300.0)
+    if min(temps) < 200:
+        out.append(CAUTION_COLD)
+    return out
+
+
+def _f(v, fmt=".4g", unit=""):
+    if v is None or (isinstance(v, float) and not np.isfinite(v)):
+        return "-"
+    if isinstance(v, (bool, np.bool_)):
+        return "yes" if v else "no"
+    if isinstance(v, str):
+        return v
+    return f"{v:{fmt}}{(' ' + unit) if unit else ''}"
+
+
+def summary(res) -> str:
+    """A readable summary: dark and illuminated states side by side."""
+    d = res.to_dict()
+    sc = res.scenario
+    lines = [f"optogen {d['version']}: {d['title']}"]
+    ab = sc.data["absorber"]
+    lines.append(_absorber_line(sc, d))
+    if res.is_sweep:
+        lines += _sweep_summary(res)
+    else:
+        lines += _point_summary(d)
+    for w in d.get("warnings", []):
+        lines.append(f"WARNING: {w}")
+    lines.append("")
+    lines += [f"Note: {c}" for c in cautions(sc)]
+    return "\n".join(lines)
+
+
+def _absorber_line(sc, d) -> str:
+    ab = sc.data["absorber"]
+    parts = [str(ab.get("material", "custom"))]
+    if "thickness_um" in ab:
+        parts.append(f"{ab['thickness_um']:g} um")
+    parts.append(f"{ab.get('temperature_K', 300.0):g} K")
+    if "resistivity_ohm_cm" in ab:
+        parts.append(f"{ab['resistivity_ohm_cm']:g} ohm cm {ab['dopant']}-type")
+    else:
+        parts.append(f"N_D = {ab.get('donors_cm3', 0):.3g} cm-3, N_A = {ab.get('acceptors_cm3', 0):.3g} cm-3")
+    return "Absorber: " + ", ".join(parts)
+
+
+def _point_summary(d) -> list[str]:
+    eq, ss = d["equilibrium"], d.get("steady_state")
+    out = [""]
+    rows = [("", "dark", "illuminated")]
+    def row(label, dark, light, fmt=".4g"):
+        rows.append((label, _f(dark, fmt), _f(light, fmt)))
+    row("n (cm-3)", eq["n0_cm3"], ss and ss["n_cm3"])
+    row("p (cm-3)", eq["p0_cm3"], ss and ss["p_cm3"])
+    row("n*p / n_i,eff^2", 1.0 if eq["n0_cm3"] else None, ss and ss["np_over_ni2"])
+    row("E_F / E_Fn (eV above Ev)", eq["fermi_level_eV"], ss and ss["electron_qfl_eV"], ".4f")
+    row("E_F / E_Fp (eV above Ev)", eq["fermi_level_eV"], ss and ss["hole_qfl_eV"], ".4f")
+    w0 = max(len(r[0]) for r in rows)
+    for r in rows:
+        out.append(f"  {r[0]:<{w0}}  {r[1]:>14}  {r[2]:>14}")
+    out.append("")
+    out.append(f"  n_i = {_f(eq['ni_cm3'])} cm-3, n_i,eff = {_f(eq['ni_eff_cm3'])} cm-3, "
+               f"Eg = {_f(eq['bandgap_eV'], '.4f')} eV, ionised N_D+ = {_f(eq['ionised_donors_cm3'])}, "
+               f"N_A- = {_f(eq['ionised_acceptors_cm3'])} cm-3")
+    if "light" in d:
+        li, g = d["light"], d["generation"]
+        out.append(f"  light: {_f(li['irradiance_W_m2'])} W/m2, {_f(li['photon_flux_cm2_s'])} photons/cm2/s; "
+                   f"G = {_f(g['average_cm3_s'])} cm-3/s, J_gen = {_f(g['photocurrent_mA_cm2'])} mA/cm2, "
+                   f"absorbed {_f(g['absorbed_fraction'], '.3f')}")
+    if g_bg := (d.get("generation") or {}).get("background_average_cm3_s"):
+        out.append(f"  background: G = {_f(g_bg)} cm-3/s")
+    if ss:
+        t = ss["tau_s"]
+        out.append(f"  delta n = {_f(ss['delta_n_cm3'])} cm-3 (injection ratio {_f(ss['injection_ratio'], '.3g')}), "
+                   f"splitting = {_f(ss['splitting_eV'], '.4f')} eV")
+        out.append(f"  implied Voc = {_f(ss['implied_voc_V'], '.4f')} V, implied FF = {_f(ss['implied_ff'], '.4f')}")
+        out.append(f"  lifetime: tau_eff = {_f(ss['tau_eff_s'], '.4g')} s; SRH {_f(t['srh'], '.3g')} s, "
+                   f"radiative {_f(t['radiative'], '.3g')} s, Auger {_f(t['auger'], '.3g')} s, "
+                   f"surface {_f(t['surface'], '.3g')} s")
+        if ss.get("limiting_mechanism"):
+            out.append(f"  limited by: {ss['limiting_mechanism']}")
+    return out
+
+
+def _sweep_summary(res) -> list[str]:
+    ds = res.dataset
+    out = ["", "Sweep: " + " x ".join(f"{k} ({ds.sizes[k]} values, {float(ds[k].min()):.4g} .. "
+                                        f"{float(ds[k].max()):.4g})" for k in ds.dims)]
+    for name in ("implied_voc_V", "tau_eff_s", "delta_n_cm3", "np_over_ni2", "n0_cm3", "p0_cm3"):
+        if name in ds:
+            v = ds[name].values.astype(float)
+            out.append(f"  {name:<16} {np.nanmin(v):>12.4g} .. {np.nanmax(v):<12.4g}")
+    return out
+
+
+# ---------------------------------------------------------------------------
+# Files
+# ---------------------------------------------------------------------------
+
+def write_all(res, outdir: Path) -> list[Path]:
+    """Write the full result into `outdir`; returns the paths written."""
+    from . import plots
+    outdir = Path(outdir)
+    ds = res.dataset
+    written = [write_json(outdir / "result.json", res.to_dict()) if not res.is_sweep or ds["n0_cm3"].size <= 10_000
+               else None,
+               write_netcdf(outdir / "result.nc", ds),
+               write_csv(outdir / "result.csv", ds)]
+    figs: list[tuple[str, object]] = []
+    if res.is_sweep:
+        dims = list(ds.dims)
+        if len(dims) == 1 and "implied_voc_V" in ds:
+            figs.append(("sweep_lines.png", plots.sweep_lines(ds)))
+        elif len(dims) == 2 and "np_over_ni2" in ds:
+            figs.append(("sweep_map.png", plots.sweep_map(ds)))
+        if len(dims) == 1 and "conductivity_contrast" in ds:
+            crossing = ds.attrs.get("background_limit_temperature_K")
+            figs += [("detector_densities.png", plots.detector_densities(ds)),
+                     ("detector_generation.png", plots.detector_generation(ds, crossing=crossing)),
+                     ("detector_contrast.png", plots.detector_contrast(ds))]
+    else:
+        det = res.details
+        curves = point_curves(res)
+        for name, cols in curves.items():
+            written.append(write_table(outdir / f"{name}.csv", cols))
+        eq = det["equilibrium"]
+        ss = det.get("steady_state")
+        if "lifetime_curve" in curves:
+            c = curves["lifetime_curve"]
+            figs.append(("lifetime_curve.png", plots.lifetime_curve(
+                c["delta_n_cm3"], {k[4:-2]: v for k, v in c.items() if k.startswith("tau_")},
+                operating_dn=float(np.ravel(ss.delta_n_cm3)[0]))))
+        if "generation_profile" in curves:
+            c = curves["generation_profile"]
+            figs.append(("generation_profile.png", plots.generation_profile(c["depth_cm"], c["generation_cm3_s"])))
+        if "implied_jv" in curves:
+            c = curves["implied_jv"]
+            jv = det["implied_jv"]
+            figs.append(("implied_jv.png", plots.implied_jv(c["voltage_V"], c["current_mA_cm2"],
+                                                            vmp=float(jv.vmp_V), jmp=float(jv.jmp_mA_cm2),
+                                                            voc=float(jv.voc_V), ff=float(jv.ff))))
+        if ss is not None:
+            figs.append(("band_diagram.png", plots.band_diagram(
+                float(np.ravel(eq.effective_gap_eV)[0]), float(np.ravel(eq.fermi_level_eV)[0]),
+                float(np.ravel(ss.electron_qfl_eV)[0]), float(np.ravel(ss.hole_qfl_eV)[0]),
+                intrinsic_level_eV=float(np.ravel(eq.intrinsic_level_eV)[0]))))
+    for name, fig in figs:
+        written.append(write_figure(outdir / name, fig))
+    return [p for p in written if p is not None]
+
+
+def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
+    """Curves behind a single-point result: implied J-V, lifetime vs delta n, G(x)."""
+    det = res.details
+    out: dict[str, dict[str, np.ndarray]] = {}
+    g = det.get("generation")
+    if g is not None:
+        out["generation_profile"] = {"depth_cm": np.asarray(g.depth_cm),
+                                     "generation_cm3_s": np.ravel(g.profile_cm3_s)}
+    if "implied_jv" in det:
+        jv = det["implied_jv"]
+        out["implied_jv"] = {"voltage_V": np.ravel(jv.voltage_V), "current_mA_cm2": np.ravel(jv.current_mA_cm2)}
+    if "lifetime_curve" in det:
+        lc = det["lifetime_curve"]
+        out["lifetime_curve"] = {k: np.ravel(v) for k, v in lc.items()}
+    return out

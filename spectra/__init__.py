@@ -1,0 +1,1 @@
+"""Bundled reference spectra (CSV); see README for provenance."""

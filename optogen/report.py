@@ -78,12 +78,6 @@ def write_table(path: Path, columns: dict[str, np.ndarray]) -> Path:
     return Path(path)
 
 
-def write_figure(path: Path, fig) -> Path:
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, format="png", dpi=120, bbox_inches="tight")
-    return Path(path)
-
-
 # ---------------------------------------------------------------------------
 # Terminal summary
 # ---------------------------------------------------------------------------
@@ -257,7 +251,7 @@ def write_all(res, outdir: Path) -> list[Path]:
                 float(np.ravel(ss.electron_qfl_eV)[0]), float(np.ravel(ss.hole_qfl_eV)[0]),
                 intrinsic_level_eV=float(np.ravel(eq.intrinsic_level_eV)[0]))))
     for name, fig in figs:
-        written.append(write_figure(outdir / name, fig))
+        written.append(plots.save_figure(fig, outdir / name))
     return [p for p in written if p is not None]
 
 

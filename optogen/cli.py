@@ -65,7 +65,10 @@ def _overrides(items):
 
 
 def main(argv=None) -> int:
-    args = _parser().parse_args(argv)
+    try:
+        args = _parser().parse_args(argv)
+    except SystemExit as exc:          # usage errors (one line, status 2), --help and --version (0)
+        return int(exc.code or 0)
     try:
         return _dispatch(args)
     except InputError as exc:

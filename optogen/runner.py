@@ -135,11 +135,17 @@ def _generation(setup: Setup, spectrum, T):
     o = setup.optics
     Tu, inv = np.unique(np.asarray(T, dtype=float), return_inverse=True)
     kw = dict(front_reflectance=o.get("front_reflectance", 0.0), rear_reflectance=o.get("rear_reflectance", 1.0),
-              light_path=o.get("light_path", "lambertian"))
+              light_path=o.get("light_path", "lambertian"), base_dir=setup.scenario.base_dir,
+              page=setup.scenario.get("absorber.optical_page"), csv_path=_csv(setup.scenario))
     if "coating" in o:
         kw["coating"] = o["coating"]
     g = generate(spectrum, setup.material, setup.thickness_cm, T_K=Tu, **kw)
     return g, inv
+
+
+def _csv(sc: Scenario):
+    p = sc.get("absorber.optical_csv")
+    return None if p is None else sc.base_dir / p
 
 
 def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,

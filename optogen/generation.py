@@ -1,0 +1,246 @@
+"""Optical generation: depth profile G(x), average G, photocurrent, absorbed spectrum.
+
+For each wavelength the light path (optics.passes) gives a downward and an upward
+flux; their Beer-Lambert decay gives the generation per unit depth
+
+    g(x, lambda) = Phi(lambda) c alpha [down e^{-c alpha x} + up e^{-c alpha (W - x)}]
+
+with c = 1 for the planar paths ("single", "mirror": forward pass plus the
+rear-reflected backward pass) and c = 2 for "lambertian".  For the Lambertian path
+this is the depth profile implied by the same model as its absorptance (Green 2002:
+randomised light with mean path 2W per pass, so its flux decays as e^{-2 alpha x}
+downwards and e^{-2 alpha (W - x)} upwards, summed over all round trips).  In every
+case  integral_0^W g dx = Phi A  exactly, so the profile integrates to the photocurrent.
+
+    G(x) = integral g dlambda,   J_ph = q integral Phi A dlambda,   <G> = J_ph / (q W)
+
+Wavelength integrals use the trapezoidal rule on the spectrum's own grid (as light.py).
+Everything is vectorised over temperature x wavelength x depth; the 3-D intermediate is
+built in chunks of temperatures so memory stays below MAX_CHUNK_BYTES.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import optics
+from .constants import q_C
+from .errors import InputError
+
+MAX_CHUNK_BYTES = 8 * 2**20        #: bound on one temperature chunk of the (T, L, X) array [bytes]
+DEPTH_POINTS = 200                 #: default number of depth points [-]
+
+
+def trapezoid_weights(x):
+    """Weights w with sum(w f) == numpy.trapezoid(f, x) for a 1-D grid x; shape (L,) [unit of x]."""
+    x = np.asarray(x, float)
+    w = np.zeros_like(x)
+    if x.size > 1:
+        dx = np.diff(x)
+        w[:-1] += dx / 2.0
+        w[1:] += dx / 2.0
+    return w
+
+
+def depth_mesh_cm(thickness_cm, alpha_max_cm1=0.0, points=DEPTH_POINTS):
+    """Depth mesh [cm] from 0 to thickness_cm: (points,), fine near the front.
+
+    0, then geometric points from h0 to W with h0 = min(W / (points - 1), 0.05 / alpha_max)
+    (at least 1e-12 W), so the shortest absorption length is resolved by ~20 points; with
+    the default 200 points the trapezoid over the mesh integrates a 1-sun profile to about
+    1e-3 for any thickness from 10 nm to 1 cm.  A transparent absorber gets a uniform mesh.
+    thickness_cm [cm]; alpha_max_cm1: largest c alpha on the grid [cm^-1]; points [-]
+    """
+    W = float(thickness_cm)
+    if not W > 0:
+        raise InputError("absorber.thickness_um", W * 1e4, "must be > 0 um")
+    points = int(points)
+    if points < 3:
+        raise InputError("generation.depth_points", points, "must be >= 3")
+    h0 = W / (points - 1)
+    if alpha_max_cm1 > 0:
+        h0 = max(min(h0, 0.05 / alpha_max_cm1), 1e-12 * W)
+    if h0 >= W / (points - 1):
+        return np.linspace(0.0, W, points)
+    return np.concatenate(([0.0], np.geomspace(h0, W, points - 1)))
+
+
+@dataclass(frozen=True, eq=False)
+class Generation:
+    """Optical generation in an absorber; leading axes broadcast over temperature.
+
+    temperature_K (...) [K]; thickness_cm [cm]; light_path [-]
+    wavelength_nm (L,) [nm]; depth_cm (X,) [cm]
+    front_reflectance (..., L) [-]; absorptance (..., L) [-]
+    absorbed_photon_flux_cm2_s_nm: absorbed spectrum Phi A (..., L) [cm^-2 s^-1 nm^-1]
+    profile_cm3_s: G(x) (..., X) [cm^-3 s^-1]
+    average_cm3_s: <G> = J_ph / (q W) (...) [cm^-3 s^-1]
+    photocurrent_mA_cm2: J_ph = q integral Phi A dlambda (...) [mA cm^-2]
+    absorbed_fraction: absorbed / incident photons (...) [-]; NaN for a dark source
+    """
+
+    temperature_K: np.ndarray
+    thickness_cm: float
+    light_path: str
+    wavelength_nm: np.ndarray
+    depth_cm: np.ndarray
+    front_reflectance: np.ndarray
+    absorptance: np.ndarray
+    absorbed_photon_flux_cm2_s_nm: np.ndarray
+    profile_cm3_s: np.ndarray
+    average_cm3_s: np.ndarray
+    photocurrent_mA_cm2: np.ndarray
+    absorbed_fraction: np.ndarray
+
+    def to_dict(self) -> dict:
+        """The DESIGN.md `generation` block: average_cm3_s, photocurrent_mA_cm2, absorbed_fraction.
+
+        Scalars become floats, arrays lists; NaN (a dark source's absorbed fraction) becomes None.
+        """
+        def plain(v):
+            v = np.asarray(v, float)
+            if v.ndim == 0:
+                return float(v) if np.isfinite(v) else None
+            return [plain(x) for x in v]
+        return {key: plain(getattr(self, key)) for key in ("average_cm3_s", "photocurrent_mA_cm2", "absorbed_fraction")}
+
+
+def profile_cm3_s(depth_cm, wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, thickness_cm, n, front_R,
+                  rear_R, path="lambertian"):
+    """Generation profile G(x) [cm^-3 s^-1], shape (..., X), without chunking (see `compute`).
+
+    depth_cm (X,) [cm]; wavelength_nm (L,) [nm]; photon_flux_cm2_s_nm (L,) [cm^-2 s^-1 nm^-1];
+    alpha_cm1, n, front_R, rear_R (..., L) or broadcastable [cm^-1], [-]; thickness_cm [cm];
+    path: single | mirror | lambertian
+    """
+    p = optics.passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path)
+    return _profile(np.asarray(depth_cm, float), trapezoid_weights(wavelength_nm) * np.asarray(photon_flux_cm2_s_nm, float),
+                    np.asarray(alpha_cm1, float), float(thickness_cm), p)
+
+
+def _profile(x, weight, alpha, W, p):
+    """G(x) = sum_l weight_l c alpha_l [down_l e^{-c alpha_l x} + up_l e^{-c alpha_l (W-x)}], shape (..., X)."""
+    shape = np.broadcast_shapes(alpha.shape, np.shape(p.down), np.shape(p.up), weight.shape)
+    L = shape[-1]
+    k = np.broadcast_to(p.c * alpha, shape).reshape(-1, L)
+    a_down = np.broadcast_to(weight * p.c * alpha * p.down, shape).reshape(-1, L)
+    a_up = np.broadcast_to(weight * p.c * alpha * p.up, shape).reshape(-1, L)
+    keep = np.any(a_down != 0, axis=0)          # wavelengths that generate anything
+    k, a_down, a_up = k[:, keep], a_down[:, keep], a_up[:, keep]
+    out = np.zeros((k.shape[0], x.size))
+    row_bytes = 8 * max(k.shape[1], 1) * x.size
+    rows = max(1, MAX_CHUNK_BYTES // row_bytes)
+    cols = x.size if row_bytes <= MAX_CHUNK_BYTES else max(1, MAX_CHUNK_BYTES // (8 * max(k.shape[1], 1)))
+    scratch = np.empty(min(rows, k.shape[0]) * k.shape[1] * min(cols, x.size))   # reused: no page faults per chunk
+    # chunks of temperatures (and of depths only if one temperature alone is too large)
+    for t0 in range(0, k.shape[0], rows):
+        for x0 in range(0, x.size, cols):
+            t, xs = slice(t0, t0 + rows), slice(x0, x0 + cols)
+            out[t, xs] = _two_passes(a_down[t], a_up[t], k[t], x[xs], W, scratch)
+    return out.reshape(shape[:-1] + (x.size,))
+
+
+_RECIPROCAL_MAX_DEPTH = 600.0   #: optical depth c alpha W below which e^{c alpha x} = 1/e^{-c alpha x} is safe [-]
+_EXPONENT_FLOOR = -700.0        #: exponents are clipped here (e^-700 ~ 1e-304, still a normal float) [-]
+
+
+def _two_passes(a_down, a_up, k, x, W, scratch):
+    """sum_l [a_down e^{-k x} + a_up e^{-k (W - x)}] for a chunk: (t, L) inputs, (X,) depths -> (t, X).
+
+    Exponents are clipped at -700: a wavelength's contribution deeper than 700 absorption
+    lengths is held at e^-700 (1e-304) of its value at the surface instead of decaying
+    further.  This keeps numpy's exp on its fast path (underflow to subnormals is ~6x
+    slower) and changes G(x) by less than 1e-304 of the surface generation.
+    scratch: a float64 buffer of at least t * L * X elements, overwritten.
+    One exponential per element: the backward pass reuses e^{-k x} as
+    e^{-k (W - x)} = e^{-k W} / e^{-k x}, exact while k W < 600; the few wavelengths with
+    600 <= k W and a non-zero backward flux (k W < ~745) get their own exponential.
+    """
+    e = scratch[:k.size * x.size].reshape(k.shape + x.shape)
+    np.multiply(k[:, :, None], -x, out=e)
+    np.maximum(e, _EXPONENT_FLOOR, out=e)
+    np.exp(e, out=e)
+    g = np.einsum("tl,tlx->tx", a_down, e)     # einsum, not BLAS matmul: no thread pool contention
+    if not np.any(a_up):
+        return g
+    kW = k * W
+    safe = kW < _RECIPROCAL_MAX_DEPTH
+    amp = np.where(safe, a_up * np.exp(-np.minimum(kW, _RECIPROCAL_MAX_DEPTH)), 0.0)
+    if np.any(amp):
+        np.reciprocal(e, out=e)                  # <= e^700: finite everywhere, multiplied by 0 where not safe
+        g += np.einsum("tl,tlx->tx", amp, e)
+    rest = ~safe & (a_up != 0)
+    if np.any(rest):
+        ti, li = np.nonzero(rest)
+        d = np.maximum(-k[ti, li, None] * (W - x), _EXPONENT_FLOOR)
+        np.add.at(g, ti, a_up[ti, li, None] * np.exp(d))
+    return g
+
+
+def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, front_R=0.0, rear_R=1.0,
+            light_path="lambertian", depth_cm=None, temperature_K=np.nan) -> Generation:
+    """Generation from arrays (the core behind `generate`).
+
+    wavelength_nm (L,) [nm]; photon_flux_cm2_s_nm (L,) incident [cm^-2 s^-1 nm^-1];
+    alpha_cm1, n (..., L) [cm^-1], [-]; thickness_cm [cm]; front_R, rear_R broadcastable
+    to (..., L) [-]; light_path: single | mirror | lambertian; depth_cm (X,) [cm] or None for
+    `depth_mesh_cm`; temperature_K (...) [K], only recorded.
+    """
+    wl = np.asarray(wavelength_nm, float)
+    phi = np.asarray(photon_flux_cm2_s_nm, float)
+    alpha = np.asarray(alpha_cm1, float)
+    W = float(thickness_cm)
+    name = optics.light_path_name(light_path)
+    p = optics.passes(alpha, W, n, front_R, rear_R, name)
+    if depth_cm is None:
+        x = depth_mesh_cm(W, p.c * float(np.max(alpha, initial=0.0)))
+    else:
+        x = np.asarray(depth_cm, float)
+        if x.ndim != 1 or np.any(x < 0) or np.any(x > W * (1 + 1e-12)) or not np.all(np.isfinite(x)):
+            raise InputError("generation.depth_cm", x, f"a 1-D array of depths within [0, {W:g}] cm")
+    w = trapezoid_weights(wl)
+    A = np.broadcast_to(p.absorptance, np.broadcast_shapes(p.absorptance.shape, wl.shape))
+    absorbed = phi * A
+    absorbed_total = absorbed @ w                                   # [cm^-2 s^-1]
+    incident = float(phi @ w)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        fraction = absorbed_total / incident if incident > 0 else np.full(absorbed_total.shape, np.nan)
+    return Generation(
+        temperature_K=np.asarray(temperature_K, float), thickness_cm=W, light_path=name,
+        wavelength_nm=wl, depth_cm=x,
+        front_reflectance=np.broadcast_to(np.asarray(front_R, float), A.shape),
+        absorptance=A, absorbed_photon_flux_cm2_s_nm=absorbed,
+        profile_cm3_s=_profile(x, w * phi, alpha, W, p),
+        average_cm3_s=absorbed_total / W,
+        photocurrent_mA_cm2=q_C * absorbed_total * 1e3,
+        absorbed_fraction=fraction)
+
+
+def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0, rear_reflectance=1.0,
+             light_path="lambertian", depth_cm=None, coating=None, *, page=None, csv_path=None,
+             base_dir=".") -> Generation:
+    """Generation of `spectrum` in an absorber of `material`, broadcast over T_K.
+
+    spectrum: light.Spectrum; material: materials.Material or a built-in name
+    thickness_cm: absorber thickness [cm]; T_K: temperature(s), any shape [K]
+    front_reflectance: number | "bare" | coating table | file table (optics.front_reflectance) [-]
+    rear_reflectance: [0, 1] [-]; light_path: single | mirror | lambertian
+    depth_cm: depth mesh (X,) [cm] or None (automatic); coating: {"n_coating", "thickness_nm"}
+    as an alternative to a coating table in front_reflectance
+    page, csv_path: optical-constant source passed to materials.optical_constants
+    base_dir: directory that relative file paths refer to
+    """
+    from . import materials
+    if isinstance(material, str):
+        material = materials.get(material)
+    if coating is not None:
+        if not (isinstance(front_reflectance, (int, float)) and front_reflectance == 0.0):
+            raise InputError("optics.coating", coating, "give either a coating or optics.front_reflectance, not both")
+        front_reflectance = coating
+    T = np.asarray(T_K, float)
+    wl = spectrum.wavelength_nm
+    oc = materials.optical_constants(material, wl, T[..., None], page=page, csv_path=csv_path)
+    Rf = optics.front_reflectance(front_reflectance, wl, oc.n, oc.k, base_dir=base_dir)
+    return compute(wl, spectrum.photon_flux_cm2_s_nm, oc.alpha_cm1, oc.n, thickness_cm, Rf, rear_reflectance,
+                   light_path, depth_cm, temperature_K=T)

@@ -1,0 +1,439 @@
+"""Light sources: standard sun spectra, blackbody, laser, LED, a measured file; scaling.
+
+Every source is a `Spectrum`: spectral irradiance on a grid of wavelengths.  All
+totals (irradiance, photon flux) and everything downstream (absorbed photons,
+photocurrent) integrate with the trapezoidal rule on the spectrum's own grid, so
+nothing is lost to re-gridding.
+
+What "1 sun" means here (common practice, e.g. IEC 60904-3 standard test
+conditions): 1 sun = 1000 W m^-2 = 100 mW cm^-2.  ``suns`` is therefore a unit of
+irradiance, the same for every spectrum: ``scale(s, suns=x)`` rescales the shape of
+``s`` to x * 1000 W m^-2.  The ASTM G173-03 AM1.5G table integrates to 1000.4 W m^-2
+(trapezoid over 280-4000 nm: 1000.37 W m^-2); at 1 sun it is rescaled by
+1000/1000.37 to exactly 1000 W m^-2.  AM1.5D and AM0 at ``suns = 1`` are also
+1000 W m^-2 of their own shape; use ``standard(name)`` unscaled (AM0: about
+1348 W m^-2, AM1.5D: about 900 W m^-2) or ``irradiance_W_m2`` for other levels.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from importlib.resources import files
+from pathlib import Path
+
+import numpy as np
+
+from ._dispatch import normalise
+from .constants import c_m_s, h_J_s, k_B_J_K
+from .errors import InputError, check_range, did_you_mean
+
+SUN_W_m2 = 1000.0            #: irradiance of 1 sun [W m^-2] (common practice)
+LASER_LINE_FWHM_nm = 0.01    #: full width of the triangular line that represents a laser [nm]
+
+#: standard spectra: name -> (file in optogen.spectra, description)
+STANDARD = {
+    "AM1.5G": ("am15g.csv", "ASTM G173-03 global, 37 deg tilt (terrestrial, flat plate)"),
+    "AM1.5D": ("am15d.csv", "ASTM G173-03 direct normal + circumsolar (concentrator)"),
+    "AM0": ("am0.csv", "ASTM G173-03 extraterrestrial"),
+}
+_STANDARD_ALIASES = {"am15": "AM1.5G", "am15global": "AM1.5G", "global": "AM1.5G",
+                     "am15direct": "AM1.5D", "direct": "AM1.5D",
+                     "extraterrestrial": "AM0", "space": "AM0"}
+SOURCE_KINDS = ("blackbody", "laser", "led", "file")
+
+_PHOTON_PER_W_nm = 1e-9 / (h_J_s * c_m_s) * 1e-4   # E [W m^-2 nm^-1] * lambda [nm] * this = [cm^-2 s^-1 nm^-1]
+
+
+# ---------------------------------------------------------------------------
+# The Spectrum record
+# ---------------------------------------------------------------------------
+
+@dataclass(frozen=True, eq=False)
+class Spectrum:
+    """Spectral irradiance on a wavelength grid.
+
+    wavelength_nm: strictly rising wavelengths, shape (L,) [nm]
+    irradiance_W_m2_nm: spectral irradiance, shape (L,) [W m^-2 nm^-1]
+    name: a label, e.g. "AM1.5G x 1 sun" [-]
+    """
+
+    wavelength_nm: np.ndarray
+    irradiance_W_m2_nm: np.ndarray
+    name: str = "spectrum"
+
+    def __post_init__(self):
+        for attr in ("wavelength_nm", "irradiance_W_m2_nm"):
+            arr = np.array(getattr(self, attr), dtype=float)
+            arr.setflags(write=False)
+            object.__setattr__(self, attr, arr)
+        if self.wavelength_nm.ndim != 1 or self.wavelength_nm.shape != self.irradiance_W_m2_nm.shape:
+            raise InputError("light.wavelength_nm", self.wavelength_nm,
+                             "a 1-D array of the same length as irradiance_W_m2_nm")
+
+    @property
+    def photon_flux_cm2_s_nm(self) -> np.ndarray:
+        """Spectral photon flux (L,) [cm^-2 s^-1 nm^-1]."""
+        return photon_flux_cm2_s_nm(self.wavelength_nm, self.irradiance_W_m2_nm)
+
+    @property
+    def irradiance_W_m2(self) -> float:
+        """Total irradiance, trapezoid over the grid [W m^-2]."""
+        return float(np.trapezoid(self.irradiance_W_m2_nm, self.wavelength_nm))
+
+    @property
+    def photon_flux_cm2_s(self) -> float:
+        """Total photon flux, trapezoid over the grid [cm^-2 s^-1]."""
+        return float(np.trapezoid(self.photon_flux_cm2_s_nm, self.wavelength_nm))
+
+    def scaled(self, **scaling) -> "Spectrum":
+        """This spectrum rescaled; keywords as for `scale` (exactly one scaling)."""
+        return scale(self, **scaling)
+
+    def __repr__(self):
+        return (f"Spectrum({self.name!r}, {self.wavelength_nm.size} points, "
+                f"{self.wavelength_nm[0]:g}-{self.wavelength_nm[-1]:g} nm, "
+                f"{self.irradiance_W_m2:.6g} W/m^2)")
+
+
+def photon_flux_cm2_s_nm(wavelength_nm, irradiance_W_m2_nm):
+    """Spectral photon flux Phi = E lambda / (h c) [cm^-2 s^-1 nm^-1].
+
+    wavelength_nm [nm]; irradiance_W_m2_nm: spectral irradiance [W m^-2 nm^-1].
+    """
+    return np.asarray(irradiance_W_m2_nm, float) * np.asarray(wavelength_nm, float) * _PHOTON_PER_W_nm
+
+
+def irradiance_from_photon_flux(wavelength_nm, photon_flux_cm2_s_nm):
+    """Spectral irradiance E = Phi h c / lambda [W m^-2 nm^-1] from a photon flux [cm^-2 s^-1 nm^-1]."""
+    return np.asarray(photon_flux_cm2_s_nm, float) / (np.asarray(wavelength_nm, float) * _PHOTON_PER_W_nm)
+
+
+def names() -> list[str]:
+    """Standard spectra and source kinds accepted by `source_from_table` (`light.source`)."""
+    return list(STANDARD) + list(SOURCE_KINDS)
+
+
+# ---------------------------------------------------------------------------
+# Standard spectra and measured files
+# ---------------------------------------------------------------------------
+
+def standard(name: str) -> Spectrum:
+    """A standard spectrum as tabulated (not rescaled): "AM1.5G", "AM1.5D" or "AM0".
+
+    Lookup ignores case and separators ("am1.5g", "AM15G").  Data: ASTM G173-03
+    (copies in optogen/spectra, provenance on each file's first line).
+    name: standard spectrum name [-]
+    """
+    key = _standard_key(name)
+    if key is None:
+        raise InputError("light.source", name, "one of " + ", ".join(names()),
+                         did_you_mean(normalise(name), [normalise(n) for n in names()]))
+    wl, values, _ = read_columns(files("optogen.spectra").joinpath(STANDARD[key][0]),
+                                 ("irradiance_W_m2_nm",), field="light.source")
+    return Spectrum(wl, values, key)
+
+
+def _standard_key(name) -> str | None:
+    lookup = {normalise(k): k for k in STANDARD}
+    lookup.update({normalise(a): k for a, k in _STANDARD_ALIASES.items()})
+    return lookup.get(normalise(name))
+
+
+def read_columns(path, value_columns, field="light.path"):
+    """Read a two-column CSV: ``wavelength_nm`` and one of `value_columns`.
+
+    Lines starting with '#' and blank lines are skipped; the first other line is
+    the header.  Checks: the header names wavelength_nm and one allowed column;
+    every row has two finite numbers; wavelengths rise strictly; values are
+    non-negative; at least two rows.  Errors name the file, the line and the problem.
+    path: the CSV file; value_columns: allowed names of the second column [-]
+    Returns (wavelength_nm [nm], values [unit of the column], column name).
+    """
+    try:
+        text = Path(path).read_text() if isinstance(path, (str, Path)) else path.read_text()
+    except OSError as err:
+        raise InputError(field, str(path), "an existing, readable CSV file", str(err)) from None
+
+    def fail(line_no, problem):
+        raise InputError(field, str(path), f"line {line_no}: {problem}")
+
+    header, rows = None, []
+    for line_no, raw in enumerate(text.splitlines(), start=1):
+        line = raw.strip()
+        if not line or line.startswith("#"):
+            continue
+        cells = [c.strip() for c in line.split(",")]
+        if header is None:
+            header = [c.lower() for c in cells]
+            if len(header) != 2 or header[0] != "wavelength_nm" or header[1] not in [v.lower() for v in value_columns]:
+                fail(line_no, f"header {line!r} must be 'wavelength_nm,<one of {', '.join(value_columns)}>'")
+            column = next(v for v in value_columns if v.lower() == header[1])
+            continue
+        if len(cells) != 2:
+            fail(line_no, f"expected 2 comma-separated numbers, found {len(cells)} fields in {line!r}")
+        try:
+            wl, val = float(cells[0]), float(cells[1])
+        except ValueError:
+            fail(line_no, f"not a number in {line!r}")
+        if not (math.isfinite(wl) and math.isfinite(val)):
+            fail(line_no, f"values must be finite, got {line!r}")
+        if wl <= 0:
+            fail(line_no, f"wavelength_nm must be > 0, got {cells[0]}")
+        if val < 0:
+            fail(line_no, f"{column} must be >= 0, got {cells[1]}")
+        if rows and wl <= rows[-1][1]:
+            fail(line_no, f"wavelength_nm {cells[0]} is not above the previous row's {rows[-1][1]:g} "
+                          "(wavelengths must rise strictly)")
+        rows.append((line_no, wl, val))
+    if header is None:
+        fail(1, "no header line found (expected 'wavelength_nm,...')")
+    if len(rows) < 2:
+        fail(len(text.splitlines()), f"at least two data rows are needed, found {len(rows)}")
+    data = np.array([(wl, val) for _, wl, val in rows])
+    return data[:, 0], data[:, 1], column
+
+
+def from_file(path) -> Spectrum:
+    """A measured spectrum from a CSV file.
+
+    Columns: ``wavelength_nm`` and either ``irradiance_W_m2_nm`` [W m^-2 nm^-1] or
+    ``photon_flux_cm2_s_nm`` [cm^-2 s^-1 nm^-1], told apart by the header; '#'
+    comment lines are allowed.  The values are taken as absolute.
+    path: the CSV file [-]
+    """
+    wl, values, column = read_columns(path, ("irradiance_W_m2_nm", "photon_flux_cm2_s_nm"))
+    if column == "photon_flux_cm2_s_nm":
+        values = irradiance_from_photon_flux(wl, values)
+    return Spectrum(wl, values, Path(str(path)).name)
+
+
+# ---------------------------------------------------------------------------
+# Sources
+# ---------------------------------------------------------------------------
+
+def planck_W_m2_nm_sr(wavelength_nm, temperature_K):
+    """Planck's law, spectral radiance per wavelength B_lambda(T) [W m^-2 nm^-1 sr^-1].
+
+    B_lambda = 2 h c^2 / lambda^5 / (exp(h c / (lambda k T)) - 1)
+    M. Planck, Ann. Phys. 309, 553 (1901).  Written as exp(-x) / (1 - exp(-x)) so that
+    large x = hc/(lambda k T) underflows to 0 instead of overflowing.
+    wavelength_nm [nm]; temperature_K [K]; broadcast together.
+    """
+    lam_m = np.asarray(wavelength_nm, float) * 1e-9
+    x = h_J_s * c_m_s / (lam_m * k_B_J_K * np.asarray(temperature_K, float))
+    return 2.0 * h_J_s * c_m_s**2 / lam_m**5 * np.exp(-x) / -np.expm1(-x) * 1e-9
+
+
+def blackbody_grid_nm(temperature_K, points=2000):
+    """Default wavelength grid for a blackbody at temperature_K [K]: (points,) [nm].
+
+    Log-spaced in x = hc/(lambda k T) from 50 down to 0.01, i.e. from about 0.1x to 500x
+    the Wien peak wavelength, so any temperature from a few K to 10^4 K keeps all but
+    ~1e-7 of its power (tails: x^3 e^-x at x = 50 and x^3/3 at x = 0.01, against pi^4/15).
+    """
+    lam_x1_nm = h_J_s * c_m_s / (k_B_J_K * float(temperature_K)) * 1e9   # where x = 1 [nm]
+    return np.geomspace(lam_x1_nm / 50.0, lam_x1_nm / 0.01, points)
+
+
+def blackbody(temperature_K, field_of_view_deg=90.0, emissivity=1.0, wavelength_nm=None) -> Spectrum:
+    """Irradiance on a flat detector from a Lambertian (grey) emitter filling a cone.
+
+    E_lambda = emissivity * pi * sin^2(theta) * B_lambda(T), theta = field-of-view half-angle;
+    pi sin^2(theta) is the projected solid angle of a cone of half-angle theta seen by a flat
+    surface (90 deg = full hemisphere, pi sr).  Total at 90 deg: emissivity sigma T^4
+    (Stefan-Boltzmann).  Use for a warm background seen by a cooled detector.
+    temperature_K: emitter temperature [K]
+    field_of_view_deg: half-angle of the cone the emitter fills, (0, 90] [deg]
+    emissivity: grey emissivity, [0, 1] [-]
+    wavelength_nm: grid [nm]; default `blackbody_grid_nm(temperature_K)`
+    """
+    T = check_range("light.temperature_K", temperature_K, 0.0, None, low_open=True, unit="K")
+    fov = check_range("light.field_of_view_deg", field_of_view_deg, 0.0, 90.0, low_open=True, unit="deg")
+    eps = check_range("light.emissivity", emissivity, 0.0, 1.0)
+    wl = blackbody_grid_nm(T) if wavelength_nm is None else _check_grid(wavelength_nm)
+    view = math.pi * math.sin(math.radians(fov)) ** 2
+    return Spectrum(wl, eps * view * planck_W_m2_nm_sr(wl, T),
+                    f"blackbody {T:g} K, {fov:g} deg, emissivity {eps:g}")
+
+
+def _check_grid(wavelength_nm):
+    wl = np.asarray(wavelength_nm, dtype=float)
+    if wl.ndim != 1 or wl.size < 2 or not np.all(np.isfinite(wl)) or np.any(wl <= 0) or np.any(np.diff(wl) <= 0):
+        raise InputError("light.wavelength_nm", wl, "a 1-D grid of at least two positive, strictly rising wavelengths")
+    return wl
+
+
+def illuminated_area_cm2(spot_area_cm2=None, beam_diameter_mm=None) -> float:
+    """The illuminated area [cm^2] from exactly one of spot_area_cm2 [cm^2] or beam_diameter_mm [mm].
+
+    The power is taken as spread evenly (top-hat) over the area pi d^2 / 4; for a Gaussian
+    beam with 1/e^2 diameter d the centre irradiance is twice that average.
+    """
+    if (spot_area_cm2 is None) == (beam_diameter_mm is None):
+        raise InputError("light.spot_area_cm2", spot_area_cm2,
+                         "give exactly one of light.spot_area_cm2 and light.beam_diameter_mm")
+    if spot_area_cm2 is not None:
+        return check_range("light.spot_area_cm2", spot_area_cm2, 0.0, None, low_open=True, unit="cm^2")
+    d_cm = check_range("light.beam_diameter_mm", beam_diameter_mm, 0.0, None, low_open=True, unit="mm") / 10.0
+    return math.pi * d_cm**2 / 4.0
+
+
+def laser(wavelength_nm, power_W, spot_area_cm2=None, beam_diameter_mm=None) -> Spectrum:
+    """A laser line of `power_W` spread evenly over a spot.
+
+    Represented as a triangle of full width at half maximum LASER_LINE_FWHM_nm: three
+    samples, lambda0 -/+ FWHM at zero and lambda0 at the peak.  The trapezoidal rule then
+    integrates any f(lambda) E(lambda) over the line to exactly f(lambda0) P / area, so
+    photon counting gives q P lambda0 / (h c) per area with no discretisation error.
+    wavelength_nm [nm]; power_W [W]; spot_area_cm2 [cm^2] or beam_diameter_mm [mm]
+    """
+    lam = float(check_range("light.wavelength_nm", wavelength_nm, 0.0, None, low_open=True, unit="nm"))
+    P = check_range("light.power_W", power_W, 0.0, None, unit="W")
+    irr = P / illuminated_area_cm2(spot_area_cm2, beam_diameter_mm) * 1e4          # [W m^-2]
+    wl = np.array([lam - LASER_LINE_FWHM_nm, lam, lam + LASER_LINE_FWHM_nm])
+    peak = irr * 2.0 / (wl[2] - wl[0])        # the trapezoid weight of the middle sample, as rounded
+    return Spectrum(wl, [0.0, peak, 0.0], f"laser {lam:g} nm, {P:g} W")
+
+
+def led(peak_nm, fwhm_nm, power_W, spot_area_cm2=None, beam_diameter_mm=None) -> Spectrum:
+    """An LED: a Gaussian in wavelength with the given peak and FWHM, `power_W` over a spot.
+
+    E(lambda) ~ exp(-(lambda - peak)^2 / (2 s^2)), s = FWHM / (2 sqrt(2 ln 2)), sampled on
+    241 points over peak +/- 3 FWHM (+/- 7 s; wavelengths <= 0 dropped) and normalised on
+    that grid so the trapezoid total is exactly P / area.  Real LED lines are slightly
+    asymmetric; the Gaussian is the usual first approximation.
+    peak_nm [nm]; fwhm_nm [nm]; power_W [W]; spot_area_cm2 [cm^2] or beam_diameter_mm [mm]
+    """
+    peak = float(check_range("light.peak_nm", peak_nm, 0.0, None, low_open=True, unit="nm"))
+    fwhm = float(check_range("light.fwhm_nm", fwhm_nm, 0.0, None, low_open=True, unit="nm"))
+    P = check_range("light.power_W", power_W, 0.0, None, unit="W")
+    irr = P / illuminated_area_cm2(spot_area_cm2, beam_diameter_mm) * 1e4          # [W m^-2]
+    wl = np.linspace(peak - 3 * fwhm, peak + 3 * fwhm, 241)
+    wl = wl[wl > 0]
+    s = fwhm / (2.0 * math.sqrt(2.0 * math.log(2.0)))
+    shape = np.exp(-0.5 * ((wl - peak) / s) ** 2)
+    return Spectrum(wl, shape * (irr / np.trapezoid(shape, wl)), f"LED {peak:g} nm, FWHM {fwhm:g} nm, {P:g} W")
+
+
+# ---------------------------------------------------------------------------
+# Scaling and scenario tables
+# ---------------------------------------------------------------------------
+
+_SCALINGS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
+
+
+def scale(spectrum: Spectrum, suns=None, irradiance_W_m2=None, power_W=None, spot_area_cm2=None,
+          photon_flux_cm2_s=None, beam_diameter_mm=None) -> Spectrum:
+    """The spectrum's shape rescaled by exactly one of:
+
+    suns: irradiance in suns, 1 sun = 1000 W m^-2 (module docstring) [-]
+    irradiance_W_m2: total irradiance [W m^-2]
+    power_W: power [W] on spot_area_cm2 [cm^2] (or beam_diameter_mm [mm]), spread evenly
+    photon_flux_cm2_s: total photon flux [cm^-2 s^-1]
+    A zero value gives a dark spectrum (valid).
+    """
+    given = {k: v for k, v in (("suns", suns), ("irradiance_W_m2", irradiance_W_m2), ("power_W", power_W),
+                               ("photon_flux_cm2_s", photon_flux_cm2_s)) if v is not None}
+    if len(given) != 1:
+        field = f"light.{sorted(given)[1]}" if given else "light.suns"
+        raise InputError(field, given.get(field[6:]),
+                         "exactly one scaling: " + ", ".join(f"light.{k}" for k in _SCALINGS),
+                         f"given: {', '.join(sorted(given))}" if given else None)
+    (key, value), = given.items()
+    if key != "power_W" and (spot_area_cm2 is not None or beam_diameter_mm is not None):
+        raise InputError("light.spot_area_cm2", spot_area_cm2 if spot_area_cm2 is not None else beam_diameter_mm,
+                         "a spot size only goes with light.power_W")
+    value = check_range(f"light.{key}", value, 0.0, None)
+    if key == "suns":
+        target, current = value * SUN_W_m2, spectrum.irradiance_W_m2
+    elif key == "irradiance_W_m2":
+        target, current = value, spectrum.irradiance_W_m2
+    elif key == "power_W":
+        target, current = value / illuminated_area_cm2(spot_area_cm2, beam_diameter_mm) * 1e4, spectrum.irradiance_W_m2
+    else:
+        target, current = value, spectrum.photon_flux_cm2_s
+    if target == 0.0:
+        factor = 0.0
+    elif current > 0.0:
+        factor = target / current
+    else:
+        raise InputError(f"light.{key}", value, "0 for a spectrum that is dark (nothing to rescale)")
+    return Spectrum(spectrum.wavelength_nm, spectrum.irradiance_W_m2_nm * factor,
+                    f"{spectrum.name}, {key} = {value:g}")
+
+
+#: keys of a [light] table per source kind (besides `source` and the scalings)
+_SOURCE_KEYS = {
+    "standard": (),
+    "blackbody": ("temperature_K", "field_of_view_deg", "emissivity"),
+    "laser": ("wavelength_nm",),
+    "led": ("peak_nm", "fwhm_nm"),
+    "file": ("path",),
+}
+_SPOT_KEYS = ("spot_area_cm2", "beam_diameter_mm")
+_ALL_KEYS = sorted({"source", *_SCALINGS, *_SPOT_KEYS, *(k for v in _SOURCE_KEYS.values() for k in v)})
+
+
+def source_from_table(table: dict, base_dir=".") -> Spectrum:
+    """A Spectrum from a scenario's [light] table.
+
+    source: a standard spectrum (AM1.5G, AM1.5D, AM0) or blackbody | laser | led | file.
+    Scaling, exactly one of suns | irradiance_W_m2 | power_W (+ spot_area_cm2 or
+    beam_diameter_mm) | photon_flux_cm2_s:
+      * standard spectra, laser and led: required (laser/led usually power_W + spot);
+      * file: optional (without one the file's absolute values are used);
+      * blackbody: not allowed (temperature_K, field_of_view_deg, emissivity fix it).
+    Other keys: blackbody temperature_K [K], field_of_view_deg [deg] (half-angle, default 90),
+    emissivity [-] (default 1); laser wavelength_nm [nm]; led peak_nm, fwhm_nm [nm];
+    file path (relative to base_dir).
+    """
+    table = dict(table)
+    for key in table:
+        if key not in _ALL_KEYS:
+            raise InputError(f"light.{key}", table[key], "a known [light] key: " + ", ".join(_ALL_KEYS),
+                             did_you_mean(key, _ALL_KEYS))
+    source = table.get("source", "AM1.5G")
+    kind = "standard" if _standard_key(source) else normalise(source)
+    if kind not in _SOURCE_KEYS:
+        raise InputError("light.source", source, "one of " + ", ".join(names()),
+                         did_you_mean(normalise(source), [normalise(n) for n in names()]))
+    for key in table:
+        if key in ("source", *_SCALINGS, *_SPOT_KEYS) or key in _SOURCE_KEYS[kind]:
+            continue
+        owner = next(k for k, v in _SOURCE_KEYS.items() if key in v)
+        raise InputError(f"light.{key}", table[key], f"only used with light.source = {owner!r}, not {source!r}")
+    scaling = {k: table[k] for k in _SCALINGS if k in table}
+    spot = {k: table[k] for k in _SPOT_KEYS if k in table}
+
+    def need(key):
+        if key not in table:
+            raise InputError(f"light.{key}", None, f"required for light.source = {source!r}")
+        return table[key]
+
+    if kind == "blackbody":
+        if scaling or spot:
+            raise InputError(f"light.{next(iter(scaling or spot))}", next(iter((scaling or spot).values())),
+                             "not used for a blackbody: its irradiance follows from light.temperature_K, "
+                             "light.field_of_view_deg and light.emissivity")
+        return blackbody(need("temperature_K"), table.get("field_of_view_deg", 90.0), table.get("emissivity", 1.0))
+    if kind == "standard":
+        shape = standard(source)
+    elif kind == "laser":
+        shape = laser(need("wavelength_nm"), 1.0, spot_area_cm2=1.0)
+    elif kind == "led":
+        shape = led(need("peak_nm"), need("fwhm_nm"), 1.0, spot_area_cm2=1.0)
+    else:
+        shape = from_file(Path(base_dir) / str(need("path")))
+        if not scaling and not spot:
+            return shape
+    if len(scaling) != 1:
+        field = f"light.{sorted(scaling)[1]}" if scaling else "light.suns"
+        raise InputError(field, table.get(field[6:]),
+                         f"exactly one scaling for light.source = {source!r}: "
+                         + ", ".join(f"light.{k}" for k in _SCALINGS)
+                         + " (power_W with light.spot_area_cm2 or light.beam_diameter_mm)",
+                         f"given: {', '.join(sorted(scaling))}" if scaling else "e.g. suns = 1")
+    out = scale(shape, **scaling, **spot)
+    label = shape.name.rsplit(",", 1)[0] if kind in ("laser", "led") else shape.name
+    (key, value), = scaling.items()
+    return Spectrum(out.wavelength_nm, out.irradiance_W_m2_nm, f"{label}, {key} = {value:g}")

@@ -1,0 +1,480 @@
+"""The uniform steady state under light: G = U(Delta n), quasi-Fermi levels, implied Voc and J-V.
+
+Uniform absorber (no gradients), Delta p = Delta n.  Definitions used in the outputs:
+
+* np_over_ni2 = n p / n_i,eff^2, with n_i,eff^2 the dark product n0 p0 (times the
+  injection-dependent band-gap narrowing factor, see optogen.recombination); it is
+  computed in log space and ``log10_np_over_ni2`` always carries it; np_over_ni2 itself
+  reads inf only beyond 1.8e308 (Si below about 15 K under light).
+* Quasi-Fermi levels, measured upward from the valence band edge Ev, with
+  Ec = Ev + effective gap (narrowed, also by injection with Schenk 1998):
+  electron_qfl = Eg_eff + kT F^-1(n/Nc), hole_qfl = -kT F^-1(p/Nv) (F: normalised
+  Fermi-Dirac integral of order 1/2, the Boltzmann log where n/Nc < 1e-6).  They are
+  evaluated as displacements from the dark Fermi level, E_F + kT (F^-1(n/Nc) -
+  F^-1(n0/Nc)), so both equal E_F exactly in the dark.
+* implied_voc_V = splitting_eV = electron_qfl - hole_qfl (uniform case).
+* injection_ratio = Delta n / max(n0, p0): below ~0.1 low injection, above ~1 high.
+* Lifetimes tau_x = Delta n / U_x; at G = 0 they are the low-injection limits
+  (evaluated at Delta n = 1e-9 max(n0, p0)); inf where a mechanism is absent.
+* limiting_mechanism: the mechanism with the largest rate at the operating point.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, fields
+
+import numpy as np
+
+from .constants import kT_eV, q_C
+from .errors import InputError, check_range
+from .recombination import MECHANISMS, PreparedRates, Recombination, _eq_shape
+
+#: relative residual |G - U| / G required at every point [-]
+RTOL = 1e-10
+_FTOL = 2e-11            # on ln(U/G) inside the iteration
+_CHUNK = 262_144         # points per chunk: bounds the working memory (~100 MB)
+_LOW_INJ = 1e-9          # Delta n / max(n0, p0) used for low-injection limits in the dark
+_X_MAX = 700.0           # ln(Delta n) cap [ln cm^-3]
+
+
+# ---------------------------------------------------------------------------
+# Root finding on x = ln(Delta n): f(x) = ln U(e^x) - ln G, increasing in x
+# ---------------------------------------------------------------------------
+
+def _f(prep: PreparedRates, x, lg):
+    with np.errstate(over="ignore", invalid="ignore"):
+        u = prep.total(np.exp(x))
+    return np.log(np.maximum(u, 1e-300)) - lg
+
+
+def _solve_flat(prep: PreparedRates, G):
+    """Delta n [cm^-3] with G = U(Delta n) for flat arrays; returns (dn, converged)."""
+    P = len(G)
+    dn = np.zeros(P)
+    ids = np.flatnonzero(G > 0)
+    if ids.size == 0:
+        return dn, np.ones(P, bool)
+    sub = prep.take(ids)
+    lg = np.log(G[ids])
+    # first guess: G x low-injection lifetime
+    d0 = _LOW_INJ * np.maximum(sub.n0, sub.p0)
+    u0 = sub.total(d0)
+    with np.errstate(divide="ignore"):
+        x0 = np.clip(np.log(d0) - np.log(np.maximum(u0, 1e-300)) + lg, -_X_MAX, _X_MAX)
+    f0 = _f(sub, x0, lg)
+    # bracket [a, b] with f(a) <= 0 <= f(b), expanding geometrically from x0
+    a, fa, b, fb = x0.copy(), f0.copy(), x0.copy(), f0.copy()
+    need_lo, need_hi = f0 > 0, f0 < 0
+    step = np.ones_like(x0)
+    for _ in range(64):
+        if not (need_lo.any() or need_hi.any()):
+            break
+        for need, x, fx, sign in ((need_lo, a, fa, -1.0), (need_hi, b, fb, 1.0)):
+            k = np.flatnonzero(need)
+            if k.size:
+                xn = np.clip(x[k] + sign * step[k], -_X_MAX, _X_MAX)
+                fn = _f(sub.take(k), xn, lg[k])
+                x[k], fx[k] = xn, fn
+                need[k] = (sign * fn < 0) & (np.abs(xn) < _X_MAX)
+        step *= 2.0
+    # lower ends that never reached f <= 0 (only at the float floor) and upper ends f >= 0
+    ok_bracket = (fa <= 0) & (fb >= 0)
+    # Illinois (modified regula falsi), vectorised over the still-active points
+    best_x = np.where(np.abs(fa) < np.abs(fb), a, b)
+    best_f = np.minimum(np.abs(fa), np.abs(fb))
+    act = np.flatnonzero(ok_bracket & (best_f > _FTOL))
+    side = np.zeros(len(ids), np.int8)
+    cur = sub.take(act) if act.size < len(ids) else sub
+    for _ in range(200):
+        if act.size == 0:
+            break
+        A, FA, B, FB = a[act], fa[act], b[act], fb[act]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            x = (A * FB - B * FA) / (FB - FA)
+        bad = ~np.isfinite(x) | (x <= np.minimum(A, B)) | (x >= np.maximum(A, B))
+        x = np.where(bad, 0.5 * (A + B), x)
+        fx = _f(cur, x, lg[act])
+        better = np.abs(fx) < best_f[act]
+        best_x[act[better]], best_f[act[better]] = x[better], np.abs(fx[better])
+        lo = fx < 0
+        s = side[act]
+        # replace the end with the same sign; halve the other end's f if it was kept twice
+        a[act] = np.where(lo, x, A)
+        fa[act] = np.where(lo, fx, np.where(s == 1, 0.5 * FA, FA))
+        b[act] = np.where(lo, B, x)
+        fb[act] = np.where(lo, np.where(s == -1, 0.5 * FB, FB), fx)
+        side[act] = np.where(lo, -1, 1)
+        done = (np.abs(fx) <= _FTOL) | (np.abs(b[act] - a[act]) <= 4e-16 * np.maximum(1.0, np.abs(x)))
+        keep = ~done
+        if keep.all():
+            continue
+        act = act[keep]
+        cur = cur.take(np.flatnonzero(keep))
+    dn[ids] = np.exp(best_x)
+    u = sub.total(dn[ids])
+    conv = np.ones(P, bool)
+    conv[ids] = ok_bracket & (np.abs(u - G[ids]) <= RTOL * G[ids])
+    return dn, conv
+
+
+# ---------------------------------------------------------------------------
+# Fermi levels in log space
+# ---------------------------------------------------------------------------
+
+def _eta_shift(log_y0, log_ratio, y_minus_y0):
+    """F^-1(y) - F^-1(y0) [-] for y = y0 (p/p0): ln y0 of the dark value, ln(y/y0), y - y0.
+
+    F is the normalised Fermi-Dirac integral of order 1/2.  Where y < 1e-6 the Boltzmann
+    log plus the first Fermi-Dirac correction, F^-1(y) = ln y + y/2^(3/2), is used, so a
+    minority density far below the float range is handled in log space.
+    """
+    eta = log_ratio + y_minus_y0 / 2.0**1.5
+    deg = (log_y0 + log_ratio) >= np.log(1e-6)
+    if np.any(deg):
+        from .equilibrium import inverse_fermi_dirac_half
+        y0 = np.exp(log_y0[deg])
+        eta = np.array(eta, dtype=float, copy=True)
+        eta[deg] = inverse_fermi_dirac_half(y0 + y_minus_y0[deg]) - inverse_fermi_dirac_half(y0)
+    return eta
+
+
+def _exp_or_inf(x):
+    """exp(x); inf beyond the float range (the value is then in log10_np_over_ni2) [-]."""
+    with np.errstate(over="ignore"):
+        return np.exp(x)
+
+
+def _state_flat(prep: PreparedRates, dn):
+    """Every output quantity (flat) at excess density dn [cm^-3]."""
+    shift = prep.ni2_shift(dn)
+    with np.errstate(divide="ignore"):
+        ldn = np.log(dn)
+    lr_n = np.logaddexp(0.0, ldn - prep.log_n0)          # ln(n / n0)
+    lr_p = np.logaddexp(0.0, ldn - prep.log_p0)          # ln(p / p0)
+    ln_ratio = lr_n + lr_p - shift
+    # quasi-Fermi levels moved from the dark Fermi level; Ec moves down by the extra narrowing
+    e_qfl = prep.ef - shift * prep.kT + prep.kT * _eta_shift(prep.log_n0 - np.log(prep.nc), lr_n, dn / prep.nc)
+    h_qfl = prep.ef - prep.kT * _eta_shift(prep.log_p0 - np.log(prep.nv), lr_p, dn / prep.nv)
+    maj = np.maximum(prep.n0, prep.p0)
+    d_eval = np.where(dn > 0, dn, _LOW_INJ * maj)
+    r = prep.rates(d_eval)
+    tot = sum(r)
+    with np.errstate(divide="ignore"):
+        taus = [np.where(x > 0, d_eval / np.where(x > 0, x, 1.0), np.inf) for x in (*r, tot)]
+    return {
+        "delta_n_cm3": dn, "delta_p_cm3": dn, "n_cm3": prep.n0 + dn, "p_cm3": prep.p0 + dn,
+        "np_over_ni2": _exp_or_inf(ln_ratio), "log10_np_over_ni2": ln_ratio / np.log(10.0),
+        "splitting_eV": e_qfl - h_qfl, "implied_voc_V": e_qfl - h_qfl,
+        "tau_eff_s": taus[4], "tau_srh_s": taus[0], "tau_radiative_s": taus[1], "tau_auger_s": taus[2],
+        "tau_surface_s": taus[3], "electron_qfl_eV": e_qfl, "hole_qfl_eV": h_qfl,
+        "injection_ratio": dn / maj, "limiting_code": np.argmax(np.stack(r), axis=0).astype(np.int8),
+    }
+
+
+# ---------------------------------------------------------------------------
+# Implied J-V on flat arrays
+# ---------------------------------------------------------------------------
+
+def _dn_at_splitting(prep: PreparedRates, v_over_kT):
+    """Delta n [cm^-3] with n p = n_i,eff^2(n, p) exp(V/kT) (Boltzmann); fixed point for injection BGN."""
+    n0, p0 = prep.n0, prep.p0
+    s = n0 + p0
+    shift = 0.0
+    for _ in range(3 if prep.inj_bgn else 1):
+        r = n0 * p0 * np.expm1(v_over_kT + shift)
+        dn = 2.0 * r / (s + np.sqrt(s * s + 4.0 * r))
+        if prep.inj_bgn:
+            shift = prep.ni2_shift(dn)
+    return np.maximum(dn, 0.0)
+
+
+def _j_rec_mA(prep, W, v):
+    """Recombination current q W U(Delta n(V)) [mA/cm^2] at splitting v [V]."""
+    dn = _dn_at_splitting(prep, v / prep.kT)
+    return q_C * W * prep.total(dn) * 1e3
+
+
+def _mpp_flat(prep, W, jgen, voc, iters=40):
+    """Maximum-power point by golden section on [0, Voc]: (vmp [V], jmp [mA/cm^2])."""
+    gr = (np.sqrt(5.0) - 1.0) / 2.0
+
+    def power(v):
+        return v * (jgen - _j_rec_mA(prep, W, v))
+    lo, hi = np.zeros_like(voc), voc.copy()
+    c, d = hi - gr * (hi - lo), lo + gr * (hi - lo)
+    pc, pd = power(c), power(d)
+    for _ in range(iters):
+        left = pc > pd                      # maximum in [lo, d]
+        hi, lo = np.where(left, d, hi), np.where(left, lo, c)
+        c, d = np.where(left, hi - gr * (hi - lo), d), np.where(left, c, lo + gr * (hi - lo))
+        pn = power(np.where(left, c, d))
+        pc, pd = np.where(left, pn, pd), np.where(left, pc, pn)
+    v = 0.5 * (lo + hi)
+    return v, jgen - _j_rec_mA(prep, W, v)
+
+
+# ---------------------------------------------------------------------------
+# Public API
+# ---------------------------------------------------------------------------
+
+@dataclass(frozen=True, eq=False)
+class SteadyState:
+    """The uniform steady state at every operating point (arrays, one shape).
+
+    delta_n_cm3, delta_p_cm3, n_cm3, p_cm3 [cm^-3]; generation_cm3_s [cm^-3 s^-1];
+    np_over_ni2 [-] and log10_np_over_ni2 [-]; splitting_eV, electron_qfl_eV, hole_qfl_eV
+    (from Ev) [eV]; implied_voc_V [V]; implied_ff [-] (NaN at G = 0); tau_eff_s, tau_srh_s,
+    tau_radiative_s, tau_auger_s, tau_surface_s [s] (inf: mechanism absent);
+    injection_ratio [-]; residual: |G - U| / G [-]; converged [bool]; limiting_mechanism [str].
+    """
+
+    delta_n_cm3: np.ndarray
+    delta_p_cm3: np.ndarray
+    n_cm3: np.ndarray
+    p_cm3: np.ndarray
+    np_over_ni2: np.ndarray
+    log10_np_over_ni2: np.ndarray
+    splitting_eV: np.ndarray
+    implied_voc_V: np.ndarray
+    implied_ff: np.ndarray
+    tau_eff_s: np.ndarray
+    tau_srh_s: np.ndarray
+    tau_radiative_s: np.ndarray
+    tau_auger_s: np.ndarray
+    tau_surface_s: np.ndarray
+    electron_qfl_eV: np.ndarray
+    hole_qfl_eV: np.ndarray
+    injection_ratio: np.ndarray
+    generation_cm3_s: np.ndarray
+    residual: np.ndarray
+    converged: np.ndarray
+    limiting_mechanism: np.ndarray
+
+    def to_dict(self) -> dict:
+        """The DESIGN.md ``steady_state`` keys (tau_s nested); inf/NaN -> None for scalars, NaN in arrays."""
+        def v(a):
+            a = np.asarray(a, dtype=float)
+            if a.ndim == 0:
+                return float(a) if np.isfinite(a) else None
+            return np.where(np.isfinite(a), a, np.nan)
+        out = {k: v(getattr(self, k)) for k in (
+            "delta_n_cm3", "delta_p_cm3", "n_cm3", "p_cm3", "np_over_ni2", "splitting_eV",
+            "implied_voc_V", "implied_ff", "tau_eff_s")}
+        out["tau_s"] = {m: v(getattr(self, f"tau_{m}_s")) for m in MECHANISMS}
+        for k in ("electron_qfl_eV", "hole_qfl_eV", "injection_ratio", "log10_np_over_ni2"):
+            out[k] = v(getattr(self, k))
+        lm = np.asarray(self.limiting_mechanism)
+        out["limiting_mechanism"] = str(lm) if lm.ndim == 0 else lm
+        return out
+
+
+def _check_inputs(G, thickness_cm):
+    G = np.asarray(G, dtype=float)
+    check_range("generation_cm3_s", G, 0.0, None, unit="cm^-3 s^-1")
+    check_range("absorber.thickness_um", thickness_cm, 0.0, None, low_open=True)
+    return G
+
+
+def _shape(eq, G, thickness_cm):
+    try:
+        return np.broadcast_shapes(_eq_shape(eq), np.shape(G), np.shape(thickness_cm))
+    except ValueError:
+        raise InputError("generation_cm3_s", f"shape {np.shape(G)}",
+                         f"a shape broadcasting with the equilibrium {_eq_shape(eq)} and the thickness "
+                         f"{np.shape(thickness_cm)}") from None
+
+
+def _chunks(size, chunk):
+    for s in range(0, size, chunk):
+        yield np.arange(s, min(size, s + chunk))
+
+
+def solve(material, eq, recombination: Recombination, generation_cm3_s, thickness_cm, *,
+          with_ff: bool = True, chunk_size: int = _CHUNK) -> SteadyState:
+    """Solve G = U_total(Delta n) at every operating point at once.
+
+    material: the absorber; eq: its `Equilibrium` (arrays); recombination: a `Recombination`;
+    generation_cm3_s: average generation rate G >= 0, any shape broadcasting with eq [cm^-3 s^-1];
+    thickness_cm: W [cm]; with_ff: also compute implied_ff (else NaN) [-];
+    chunk_size: points per chunk (bounds the working memory) [-].
+
+    Bracketed in ln(Delta n) (geometric expansion from G x low-injection lifetime), then
+    Illinois regula falsi on ln U - ln G; each point to |G - U| <= 1e-10 G, else flagged
+    converged = False (its best estimate is kept).  G = 0 gives Delta n = 0 exactly.
+    """
+    G = _check_inputs(generation_cm3_s, thickness_cm)
+    shape = _shape(eq, G, thickness_cm)
+    size = int(np.prod(shape))
+    Gb = np.broadcast_to(G, shape)
+    out: dict[str, np.ndarray] = {}
+    for idx in _chunks(size, chunk_size):
+        prep = recombination.prepare(material, eq, thickness_cm, shape, idx)
+        g = Gb[np.unravel_index(idx, shape)] if Gb.ndim else np.full(idx.size, float(Gb))
+        dn, conv = _solve_flat(prep, g)
+        st = _state_flat(prep, dn)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            u = prep.total(dn)
+            st["residual"] = np.where(g > 0, np.abs(g - u) / np.where(g > 0, g, 1.0), 0.0)
+        st["converged"] = conv
+        st["generation_cm3_s"] = g
+        st["implied_ff"] = np.full(idx.size, np.nan)
+        if with_ff:
+            lit = np.flatnonzero(g > 0)
+            if lit.size:
+                sub = prep.take(lit)
+                W = _thickness_flat(thickness_cm, shape, idx[lit])
+                jgen = q_C * W * g[lit] * 1e3
+                voc = st["log10_np_over_ni2"][lit] * np.log(10.0) * sub.kT
+                vmp, jmp = _mpp_flat(sub, W, jgen, voc)
+                st["implied_ff"][lit] = vmp * jmp / (voc * jgen)
+        for k, v in st.items():
+            if k not in out:
+                out[k] = np.empty(size, dtype=v.dtype)
+            out[k][idx] = v
+    code = out.pop("limiting_code")
+    names = np.array(MECHANISMS)
+    res = {k: v.reshape(shape) for k, v in out.items()}
+    res["limiting_mechanism"] = names[code].reshape(shape)
+    if shape == ():
+        res = {k: v[()] for k, v in res.items()}
+    return SteadyState(**{f.name: res[f.name] for f in fields(SteadyState)})
+
+
+def _thickness_flat(thickness_cm, shape, idx):
+    t = np.asarray(thickness_cm, dtype=float)
+    return np.full(idx.size, float(t)) if t.ndim == 0 else np.broadcast_to(t, shape)[np.unravel_index(idx, shape)]
+
+
+def solve_chunked(material, recombination: Recombination, temperature_K, donors_cm3, acceptors_cm3,
+                  generation_cm3_s, thickness_cm, *, chunk_size: int = _CHUNK,
+                  fields_out=("delta_n_cm3", "implied_voc_V", "tau_eff_s", "converged"),
+                  equilibrium_kwargs=None, progress=None) -> dict:
+    """Steady state for very many points with bounded memory (equilibrium computed per chunk).
+
+    temperature_K [K], donors_cm3, acceptors_cm3 [cm^-3], generation_cm3_s [cm^-3 s^-1],
+    thickness_cm [cm]: arrays broadcasting to one shape; chunk_size: points per chunk [-];
+    fields_out: `SteadyState` field names kept; equilibrium_kwargs: passed to
+    optogen.equilibrium.equilibrium (bgn_model defaults to the recombination's);
+    progress: optional callable(n_done) [-].
+    Returns dict field -> array of the broadcast shape (implied_ff is not computed).
+    """
+    from .equilibrium import equilibrium
+    args = [np.asarray(a, dtype=float) for a in (temperature_K, donors_cm3, acceptors_cm3, generation_cm3_s,
+                                                 thickness_cm)]
+    shape = np.broadcast_shapes(*(a.shape for a in args))
+    size = int(np.prod(shape))
+    kw = dict(equilibrium_kwargs or {})
+    kw.setdefault("bgn_model", recombination.bgn_model)
+    res = {}
+    for idx in _chunks(size, chunk_size):
+        T, nd, na, G, W = (a[np.unravel_index(idx, shape)] if a.ndim else np.full(idx.size, float(a)) for a in args)
+        eq = equilibrium(material, T, nd, na, **kw)
+        st = solve(material, eq, recombination, G, W, with_ff=False, chunk_size=chunk_size)
+        for k in fields_out:
+            v = np.asarray(getattr(st, k))
+            if k not in res:
+                res[k] = np.empty(size, dtype=v.dtype)
+            res[k][idx] = v
+        if progress is not None:
+            progress(idx.size)
+    return {k: v.reshape(shape) for k, v in res.items()}
+
+
+@dataclass(frozen=True, eq=False)
+class ImpliedJV:
+    """Implied J-V curve of a uniform absorber and its figures.
+
+    voltage_V (..., M) [V]; current_mA_cm2 (..., M) [mA/cm^2]; jsc_mA_cm2 [mA/cm^2]
+    (= the photocurrent); voc_V [V]; vmp_V [V]; jmp_mA_cm2 [mA/cm^2]; pmax_mW_cm2 [mW/cm^2];
+    ff [-]; efficiency [-] (None without an irradiance).
+    """
+
+    voltage_V: np.ndarray
+    current_mA_cm2: np.ndarray
+    jsc_mA_cm2: np.ndarray
+    voc_V: np.ndarray
+    vmp_V: np.ndarray
+    jmp_mA_cm2: np.ndarray
+    pmax_mW_cm2: np.ndarray
+    ff: np.ndarray
+    efficiency: np.ndarray | None
+
+
+def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocurrent_mA_cm2,
+               voltages_V=None, irradiance_W_m2=None, points: int = 101) -> ImpliedJV:
+    """Implied J-V: J(V) = J_gen - q W U(Delta n(V)), Delta n(V) from n p = n_i,eff^2 exp(qV/kT).
+
+    material; eq: `Equilibrium`; recombination; thickness_cm: W [cm];
+    photocurrent_mA_cm2: J_gen > 0, broadcasting with eq [mA/cm^2];
+    voltages_V: voltage grid (M,) [V] (default: `points` values from 0 to Voc per point);
+    irradiance_W_m2: incident irradiance for the efficiency [W m^-2]; points: grid size [-].
+    Voc is where J = 0 (the steady-state splitting under G = J_gen / (q W), Boltzmann
+    statistics); the maximum-power point by golden section on [0, Voc].
+    """
+    jg = np.asarray(photocurrent_mA_cm2, dtype=float)
+    check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA/cm^2")
+    check_range("absorber.thickness_um", thickness_cm, 0.0, None, low_open=True)
+    G = jg * 1e-3 / (q_C * np.asarray(thickness_cm, dtype=float))
+    ss = solve(material, eq, recombination, G, thickness_cm, with_ff=False)
+    shape = np.shape(ss.delta_n_cm3)
+    size = int(np.prod(shape))
+    prep = recombination.prepare(material, eq, thickness_cm, shape)
+    W = np.broadcast_to(np.asarray(thickness_cm, float), shape).reshape(-1)
+    jgen = np.broadcast_to(jg, shape).reshape(-1)
+    voc = np.asarray(ss.log10_np_over_ni2, float).reshape(-1) * np.log(10.0) * prep.kT
+    vmp, jmp = _mpp_flat(prep, W, jgen, voc)
+    if voltages_V is None:
+        grid = np.linspace(0.0, 1.0, points)[:, None] * voc[None, :]
+    else:
+        vv = np.asarray(voltages_V, dtype=float).reshape(-1)
+        check_range("voltages_V", vv, 0.0, None, unit="V")
+        grid = np.broadcast_to(vv[:, None], (vv.size, size))
+    M = grid.shape[0]
+    rep = prep.take(np.tile(np.arange(size), M))
+    cur = jgen[None, :] - _j_rec_mA(rep, np.tile(W, M), grid.reshape(-1)).reshape(M, size)
+    pmax = vmp * jmp
+    eff = None
+    if irradiance_W_m2 is not None:
+        irr = check_range("light.irradiance_W_m2", irradiance_W_m2, 0.0, None, low_open=True, unit="W m^-2")
+        eff = (pmax / (np.broadcast_to(irr, shape).reshape(-1) * 0.1)).reshape(shape)
+
+    def sh(a):
+        a = np.asarray(a).reshape(shape)
+        return a[()] if shape == () else a
+    return ImpliedJV(np.moveaxis(grid.reshape((M,) + shape), 0, -1), np.moveaxis(cur.reshape((M,) + shape), 0, -1),
+                     sh(jgen), sh(voc), sh(vmp), sh(jmp), sh(pmax), sh(pmax / (voc * jgen)),
+                     None if eff is None else sh(eff))
+
+
+@dataclass(frozen=True, eq=False)
+class LifetimeCurve:
+    """Effective lifetime and each mechanism's lifetime over an excess-density range.
+
+    delta_n_cm3 (D,) [cm^-3]; tau_eff_s, tau_srh_s, tau_radiative_s, tau_auger_s,
+    tau_surface_s: arrays (..., D) [s] (inf where a mechanism is absent).
+    """
+
+    delta_n_cm3: np.ndarray
+    tau_eff_s: np.ndarray
+    tau_srh_s: np.ndarray
+    tau_radiative_s: np.ndarray
+    tau_auger_s: np.ndarray
+    tau_surface_s: np.ndarray
+
+
+def lifetime_curve(material, eq, recombination: Recombination, thickness_cm, delta_n_cm3=None) -> LifetimeCurve:
+    """tau_eff(Delta n) and each mechanism's tau = Delta n / U_x, ready for a plot.
+
+    material; eq: `Equilibrium` (any shape S); recombination; thickness_cm: W [cm];
+    delta_n_cm3: excess densities (D,) > 0 (default 1e12..1e17, 51 log-spaced) [cm^-3].
+    Returns arrays of shape S + (D,).
+    """
+    dn = np.logspace(12, 17, 51) if delta_n_cm3 is None else np.asarray(delta_n_cm3, dtype=float).reshape(-1)
+    check_range("delta_n_cm3", dn, 0.0, None, low_open=True, unit="cm^-3")
+    base = np.broadcast_shapes(_eq_shape(eq), np.shape(thickness_cm))
+    shape = (dn.size,) + base
+    prep = recombination.prepare(material, eq, thickness_cm, shape)
+    d = np.broadcast_to(dn.reshape((-1,) + (1,) * len(base)), shape).reshape(-1)
+    r = prep.rates(d)
+    with np.errstate(divide="ignore"):
+        taus = [np.moveaxis((d / x).reshape(shape), 0, -1) for x in (sum(r), *r)]
+    return LifetimeCurve(dn, *taus)

@@ -1,0 +1,219 @@
+"""Uniform steady state: G = U(dn), quasi-Fermi levels, implied Voc / J-V, lifetime curves."""
+import dataclasses
+import math
+
+import numpy as np
+import pytest
+from hypothesis import assume, given, settings
+from hypothesis import strategies as st
+
+from optogen import materials
+from optogen.constants import kT_eV, q_C
+from optogen.equilibrium import equilibrium
+from optogen.errors import InputError
+from optogen.recombination import Defect, Recombination
+from optogen.steady_state import implied_jv, lifetime_curve, solve, solve_chunked
+
+SI = materials.get("Si")
+W = 0.016   # 160 um [cm]
+PASSIVATED = Recombination(front_J0_fA_cm2=5.0, rear_J0_fA_cm2=5.0,
+                           defects=(Defect("Fe_i", 0.38, "Ev", 5e-14, 7e-17, density_cm3=1e10),))
+# only a constant lifetime W/(2S): S form on both surfaces, no bulk mechanism
+NO_BULK = SI.with_(auger_Cn_cm6_s=0.0, auger_Cp_cm6_s=0.0, radiative_B_cm3_s=0.0)
+
+
+def _constant_tau(tau):
+    return Recombination(front_S_cm_s=W / (2 * tau), rear_S_cm_s=W / (2 * tau), bgn_model="none",
+                         intrinsic="constant")
+
+
+def _total_rate(rec, eq, dn):
+    return sum(rec.rates(SI, eq, dn, W).values())
+
+
+def test_dark_is_equilibrium():
+    # analytic: G = 0 -> dn = 0 exactly, n p / n_i,eff^2 = 1, no splitting; n p = n_i,eff^2 (non-degenerate)
+    eq = equilibrium(SI, [77.0, 298.15, 400.0], [1e15, 0.0, 1e16], [0.0, 1e16, 0.0])
+    ss = solve(SI, eq, PASSIVATED, 0.0, W)
+    assert np.all(ss.delta_n_cm3 == 0) and np.all(ss.np_over_ni2 == 1.0) and np.all(ss.splitting_eV == 0.0)
+    assert np.all(ss.converged)
+    # analytic: n p = n_i,eff^2 up to the first Fermi-Dirac correction, F_1/2(eta) ~ e^eta (1 - e^eta / 2^1.5)
+    fd = np.exp(-(ss.n_cm3 / eq.nc_cm3 + ss.p_cm3 / eq.nv_cm3) / 2**1.5)
+    assert ss.n_cm3 * ss.p_cm3 == pytest.approx(eq.ni_eff_cm3**2 * fd, rel=1e-6)
+    assert ss.electron_qfl_eV == pytest.approx(eq.fermi_level_eV, abs=1e-15)
+    assert np.all(np.isfinite(ss.tau_eff_s)) and np.all(ss.limiting_mechanism != "")
+    assert np.all(np.isnan(ss.implied_ff))      # documented: no FF without light
+
+
+def test_mass_action_ratio_matches_splitting_non_degenerate():
+    # analytic: exp(splitting/kT) = n p / n_i,eff^2 where not degenerate (Boltzmann); our statistics are
+    # Fermi-Dirac, F_1/2(eta) = e^eta (1 - e^eta / 2^1.5 + ...), so both sides carry known first-order factors
+    T = 298.15
+    eq = equilibrium(SI, T, 1e15, 0.0, bgn_model="none")
+    G = np.logspace(13, 19, 7)
+    ss = solve(SI, eq, dataclasses.replace(PASSIVATED, bgn_model="none"), G, W)
+    ratio = ss.n_cm3 * ss.p_cm3 / float(eq.ni_eff_cm3) ** 2
+    y = ss.n_cm3 / eq.nc_cm3 + ss.p_cm3 / eq.nv_cm3
+    y0 = (eq.n0_cm3 / eq.nc_cm3 + eq.p0_cm3 / eq.nv_cm3)
+    assert np.exp(ss.splitting_eV / kT_eV(T)) == pytest.approx(ratio, rel=5e-3)       # y <= 4e-3 here
+    assert np.exp(ss.splitting_eV / kT_eV(T)) == pytest.approx(ratio * np.exp(y / 2**1.5), rel=1e-6)
+    # np_over_ni2 is referred to the dark product n0 p0 = n_i,eff^2 exp(-y0 / 2^1.5)
+    assert ss.np_over_ni2 == pytest.approx(ratio * np.exp(y0 / 2**1.5), rel=1e-9)
+    assert np.all(ss.implied_voc_V == ss.splitting_eV)
+
+
+def test_implied_voc_rises_kt_ln10_per_decade_constant_tau():
+    # analytic: low injection, constant tau: dn = G tau, Voc = kT ln((1 + dn/n0)(1 + dn/p0)) -> +kT ln(10)/q
+    # per decade; 59.2 mV at 298.15 K (common practice); correction kT ln(1 + 9 dn/n0) <= 2e-5 V here
+    T = 298.15
+    eq = equilibrium(NO_BULK, T, 1e16, 0.0, bgn_model="none")
+    G = np.logspace(13, 16, 4)       # dn = G tau = 1e10..1e13 << n0 = 1e16
+    ss = solve(NO_BULK, eq, _constant_tau(1e-3), G, W)
+    steps = np.diff(ss.implied_voc_V)
+    assert steps == pytest.approx(float(kT_eV(T)) * math.log(10.0), rel=5e-4)
+    assert steps == pytest.approx(0.0592, abs=1e-4)
+    assert ss.delta_n_cm3 == pytest.approx(G * 1e-3, rel=1e-9)   # analytic dn = G tau (S form is exact)
+
+
+def test_high_generation_and_residual():
+    # 1e-6 .. 1e4 suns for 160 um (G ~ 1e13 .. 1e24 cm^-3 s^-1); residual |G - U| <= 1e-10 G, checked
+    # with the public rate functions (independent of the solver's internals)
+    eq = equilibrium(SI, 298.15, 1.5e15, 0.0)
+    G = np.logspace(13, 24, 23)
+    ss = solve(SI, eq, PASSIVATED, G, W)
+    assert np.all(ss.converged)
+    u = _total_rate(PASSIVATED, eq, ss.delta_n_cm3)
+    assert np.all(np.abs(G - u) <= 1e-10 * G)
+    assert np.all(np.diff(ss.delta_n_cm3) > 0) and np.all(np.diff(ss.implied_voc_V) > 0)
+    assert ss.limiting_mechanism[-1] == "auger"      # Auger dominates at 1e4 suns (common practice)
+    assert np.all(np.isfinite(ss.np_over_ni2))
+
+
+def test_limiting_mechanism_is_largest_rate():
+    eq = equilibrium(SI, 300.0, [1e15, 1e15], 0.0)
+    ss = solve(SI, eq, PASSIVATED, [1e15, 1e22], W)
+    for i in range(2):
+        r = PASSIVATED.rates(SI, eq, ss.delta_n_cm3, W)
+        assert ss.limiting_mechanism[i] == max(r, key=lambda k: r[k][i])
+        # analytic: 1/tau_eff = sum of 1/tau_x
+        inv = sum(1 / getattr(ss, f"tau_{m}_s")[i] for m in ("srh", "radiative", "auger", "surface"))
+        assert 1 / ss.tau_eff_s[i] == pytest.approx(inv, rel=1e-10)
+
+
+def test_broadcast_g_has_more_dims_than_eq():
+    eq = equilibrium(SI, [280.0, 300.0, 320.0], 1e15, 0.0)
+    G = np.logspace(14, 20, 4)[:, None] * np.ones(3)
+    ss = solve(SI, eq, PASSIVATED, G, W)
+    assert ss.delta_n_cm3.shape == (4, 3) and ss.limiting_mechanism.shape == (4, 3)
+    one = solve(SI, equilibrium(SI, 320.0, 1e15, 0.0), PASSIVATED, G[2, 2], W)
+    assert one.delta_n_cm3 == pytest.approx(ss.delta_n_cm3[2, 2], rel=1e-9)
+    d = one.to_dict()
+    assert set(d["tau_s"]) == {"srh", "radiative", "auger", "surface"}
+    for k in ("delta_n_cm3", "delta_p_cm3", "n_cm3", "p_cm3", "np_over_ni2", "splitting_eV", "implied_voc_V",
+              "implied_ff", "tau_eff_s", "electron_qfl_eV", "hole_qfl_eV", "injection_ratio"):
+        assert isinstance(d[k], float)
+
+
+def test_chunked_equals_direct():
+    rng = np.random.default_rng(1)
+    T = rng.uniform(250, 350, 50)
+    nd = 10 ** rng.uniform(14, 17, 50)
+    G = 10 ** rng.uniform(13, 22, 50)
+    got = solve_chunked(SI, PASSIVATED, T, nd, 0.0, G, W, chunk_size=16)
+    ref = solve(SI, equilibrium(SI, T, nd, 0.0), PASSIVATED, G, W, with_ff=False)
+    assert got["delta_n_cm3"] == pytest.approx(ref.delta_n_cm3, rel=1e-9)
+
+
+def test_implied_ff_ideal_diode():
+    # low injection, constant tau -> ideal diode J = Jsc - J0 expm1(V/kT) with J0 = Jsc / expm1(voc).
+    # (1) the exact ideal-diode FF, maximised independently with scipy.optimize (analytic);
+    # (2) Green's empirical FF = (voc - ln(voc + 0.72)) / (voc + 1), voc = Voc/(kT/q)
+    #     (M. A. Green, Solid-State Electron. 24, 788 (1981); about 1e-4 for voc > 10, from memory)
+    from scipy.optimize import minimize_scalar
+    T = 298.15
+    eq = equilibrium(NO_BULK, T, 1e17, 0.0, bgn_model="none")
+    rec = _constant_tau(1e-6)                 # dn(Voc) = G tau ~ 1.6e13 << n0: low injection
+    jv = implied_jv(NO_BULK, eq, rec, W, 40.0, irradiance_W_m2=1000.0)
+    voc = float(jv.voc_V / kT_eV(T))
+    assert voc > 10
+    best = minimize_scalar(lambda v: -v * (1 - math.expm1(v) / math.expm1(voc)), bounds=(0, voc),
+                           method="bounded", options={"xatol": 1e-10})
+    assert jv.ff == pytest.approx(-best.fun / voc, rel=2e-5)                 # dn/n0 ~ 1e-4 non-ideality
+    assert jv.ff == pytest.approx((voc - math.log(voc + 0.72)) / (voc + 1.0), abs=2e-4)
+    assert jv.efficiency == pytest.approx(jv.pmax_mW_cm2 / 100.0)            # 1000 W/m^2 = 100 mW/cm^2
+    assert jv.current_mA_cm2[0] == pytest.approx(40.0) and abs(jv.current_mA_cm2[-1]) < 1e-6 * 40.0
+    # SteadyState.implied_ff at the same generation
+    ss = solve(NO_BULK, eq, rec, 40e-3 / (q_C * W), W)
+    assert ss.implied_ff == pytest.approx(float(jv.ff), rel=1e-9)
+    # Voc: Fermi-Dirac splitting vs Boltzmann J = 0 point differ by kT (n0/Nc)/2^1.5 ~ 3e-5 V (analytic)
+    assert ss.implied_voc_V == pytest.approx(float(jv.voc_V), abs=5e-5)
+
+
+def test_lifetime_curve_shape_and_sum():
+    eq = equilibrium(SI, 300.0, [1e15, 1e16], 0.0)
+    lc = lifetime_curve(SI, eq, PASSIVATED, W)
+    assert lc.tau_eff_s.shape == (2, 51) and lc.delta_n_cm3[0] == 1e12 and lc.delta_n_cm3[-1] == 1e17
+    inv = 1 / lc.tau_srh_s + 1 / lc.tau_radiative_s + 1 / lc.tau_auger_s + 1 / lc.tau_surface_s
+    assert 1 / lc.tau_eff_s == pytest.approx(inv, rel=1e-12)        # analytic
+
+
+def test_bad_inputs():
+    eq = equilibrium(SI, 300.0, 1e15, 0.0)
+    with pytest.raises(InputError, match="generation_cm3_s"):
+        solve(SI, eq, PASSIVATED, -1.0, W)
+    with pytest.raises(InputError, match="generation_cm3_s"):
+        solve(SI, eq, PASSIVATED, np.nan, W)
+    with pytest.raises(InputError, match="thickness"):
+        solve(SI, eq, PASSIVATED, 1e17, -1.0)
+    with pytest.raises(InputError, match="photocurrent"):
+        implied_jv(SI, eq, PASSIVATED, W, 0.0)
+
+
+# ------------------------------------------------------------------ properties
+
+doping = st.floats(13.0, 18.0)
+temps = st.floats(200.0, 420.0)
+gens = st.lists(st.floats(13.0, 24.0), min_size=2, max_size=6)
+
+
+@settings(max_examples=40, deadline=None)
+@given(doping, st.booleans(), temps, gens)
+def test_property_monotonic_in_g_and_residual(logN, ntype, T, logG):
+    # analytic: U(dn) increases with dn, so dn and implied Voc never fall as G rises;
+    # every returned point meets |G - U| <= 1e-10 G (checked with the public rates)
+    N = 10**logN
+    eq = equilibrium(SI, T, N if ntype else 0.0, 0.0 if ntype else N)
+    G = np.sort(10 ** np.asarray(logG))
+    ss = solve(SI, eq, PASSIVATED, G, W)
+    assert np.all(ss.converged)
+    assert np.all(np.diff(ss.delta_n_cm3) >= 0) and np.all(np.diff(ss.implied_voc_V) >= -1e-12)
+    u = _total_rate(PASSIVATED, eq, ss.delta_n_cm3)
+    assert np.all(np.abs(G - u) <= 1e-10 * G)
+
+
+@settings(max_examples=30, deadline=None)
+@given(st.floats(15.0, 17.5), st.floats(220.0, 380.0), st.floats(5.0, 40.0), st.floats(13.0, 17.0))
+def test_property_voc_falls_with_temperature_low_injection(logN, T, dT, logG):
+    # analytic: at fixed G in low injection, n_i^2 grows ~exp(-Eg/kT) faster than any lifetime gain,
+    # so implied Voc falls as T rises
+    eq = equilibrium(SI, [T, T + dT], 10**logN, 0.0)
+    ss = solve(SI, eq, PASSIVATED, 10**logG, W)
+    assume(np.all(ss.injection_ratio < 0.1))
+    assert ss.implied_voc_V[1] < ss.implied_voc_V[0]
+
+
+def test_schenk_injection_bgn_consistent_outputs():
+    # analytic: with injection-dependent narrowing n_i,eff^2(n, p) = n_i^2 exp(dEg(n, p)/kT) (Schenk 1998 via
+    # optogen.equilibrium.bgn_eV); np_over_ni2 and exp(splitting/kT) both refer to it (Fermi-Dirac factors as above)
+    from optogen.equilibrium import bgn_eV
+    T = 300.0
+    eq = equilibrium(SI, T, 1e16, 0.0, bgn_model="schenk1998")
+    rec = dataclasses.replace(PASSIVATED, bgn_model="schenk1998")
+    G = np.array([1e16, 1e19, 1e21])
+    ss = solve(SI, eq, rec, G, W)
+    n, p = ss.n_cm3, ss.p_cm3
+    ni2 = float(eq.ni_cm3) ** 2 * np.exp(bgn_eV(SI, T, 1e16, 0.0, n, p, model="schenk1998") / kT_eV(T))
+    y, y0 = n / eq.nc_cm3 + p / eq.nv_cm3, eq.n0_cm3 / eq.nc_cm3 + eq.p0_cm3 / eq.nv_cm3
+    assert ss.np_over_ni2 == pytest.approx(n * p / ni2 * np.exp(y0 / 2**1.5), rel=1e-6)
+    assert np.exp(ss.splitting_eV / kT_eV(T)) == pytest.approx(n * p / ni2 * np.exp(y / 2**1.5), rel=1e-5)
+    assert np.all(np.abs(G - _total_rate(rec, eq, ss.delta_n_cm3)) <= 1e-10 * G)

@@ -314,8 +314,8 @@ def _coeffs_dziewior_schmid1977(material, n0, p0, T):
 
 
 def _coeffs_constant(material, n0, p0, T):
-    cn, cp = material.auger_Cn_cm6_s, material.auger_Cp_cm6_s
-    return cn * n0 + cp * p0, cn + cp, 1.0, material.radiative_B_cm3_s + 0.0 * np.asarray(T)
+    cn, cp = material.auger_coefficients_cm6_s(T)     # temperature-dependent where published
+    return cn * n0 + cp * p0, cn + cp, 1.0, material.radiative_coefficient_cm3_s(T)
 
 
 def _auger(coeffs, n0, p0, dn, ni2_shift):
@@ -585,7 +585,7 @@ class PreparedRates:
     """
 
     _ARRAYS = ("T", "kT", "ef", "nd", "na", "n0", "p0", "log_n0", "log_p0", "nc", "nv", "eg", "bgn0",
-               "srh_a", "srh_b", "n1", "p1", "aug_A", "rad_B", "s_j0", "s_s")
+               "srh_a", "srh_b", "n1", "p1", "aug_A", "aug_C", "rad_B", "s_j0", "s_s")
 
     def __init__(self, rec: Recombination, material, eq, thickness_cm, shape=None, index=None):
         if rec is None:
@@ -634,7 +634,7 @@ class PreparedRates:
         self.intrinsic = rec.intrinsic_model(material)
         A, C, e, B = INTRINSIC_MODELS[self.intrinsic](material, n0, p0, self.T)
         self.aug_A = np.broadcast_to(A, (P,)).astype(float)
-        self.aug_C, self.aug_e = float(C), float(e)
+        self.aug_C, self.aug_e = np.broadcast_to(C, (P,)).astype(float), float(e)
         self.rad_B = (np.broadcast_to(B, (P,)) * _gather(rec.B_rel, shape, index)
                       * (1.0 - _gather(rec.photon_recycling, shape, index)))
         # surfaces
@@ -649,7 +649,7 @@ class PreparedRates:
                              else "recombination.rear_J0_fA_cm2", "J0",
                              "a J0 surface needs n_i,eff^2 above the float range (T too low here)",
                              "give the surface as front_S_cm_s / rear_S_cm_s")
-        if not (np.any(self.srh_a) or np.any(self.aug_A) or self.aug_C or np.any(self.rad_B)
+        if not (np.any(self.srh_a) or np.any(self.aug_A) or np.any(self.aug_C) or np.any(self.rad_B)
                 or np.any(self.s_j0) or np.any(self.s_s)) and P:
             raise InputError("recombination", "no mechanism",
                              "at least one recombination mechanism (defects, Auger/radiative coefficients "

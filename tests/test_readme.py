@@ -1,0 +1,30 @@
+"""The README's quick start is what CI runs (common practice: docs that cannot drift)."""
+import re
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def _quick_start_commands():
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    section = text.split("## Quick start", 1)[1].split("\n## ", 1)[0]
+    return re.findall(r"```(?:bash|sh)?\n(.+?)\n```", section, flags=re.S)
+
+
+def test_readme_has_exactly_two_quick_start_commands():
+    cmds = _quick_start_commands()
+    assert len(cmds) == 2
+    assert all("\n" not in c.strip() for c in cmds)      # each is one line to paste
+
+
+def test_ci_runs_the_readme_test_command():
+    ci = (ROOT / ".ci" / "run").read_text(encoding="utf-8")
+    test_cmd = _quick_start_commands()[1].strip()
+    assert "pytest" in test_cmd
+    assert test_cmd in ci.splitlines()
+
+
+def test_main_job_command_names_a_bundled_scenario():
+    run_cmd = _quick_start_commands()[0]
+    scen = re.search(r"scenarios/\S+\.toml", run_cmd).group(0)
+    assert (ROOT / scen).is_file()

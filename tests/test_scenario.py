@@ -1,0 +1,100 @@
+"""Scenario files: parsing, validation, overrides and sweep expansion.
+
+These check behaviour the scenario format in DESIGN.md prescribes (a
+project contract, not physics), so the expected values come from that
+document or from plain arithmetic.
+"""
+import numpy as np
+import pytest
+
+from optogen.errors import InputError
+from optogen.scenario import load_scenario, parse_value, unit_of
+
+BASE = """
+title = "t"
+[absorber]
+material = "Si"
+thickness_um = 100
+temperature_K = 300
+donors_cm3 = 1e15
+"""
+
+
+def test_minimal_absorber_only():
+    sc = load_scenario(BASE)
+    assert sc.get("absorber.donors_cm3") == 1e15
+    assert sc.n_points == 1 and sc.sweep == ()
+
+
+def test_unknown_key_gets_did_you_mean():
+    with pytest.raises(InputError, match=r"absorber\.temprature_K.*did you mean 'temperature_K'"):
+        load_scenario(BASE.replace("temperature_K", "temprature_K"))
+
+
+def test_unknown_section_gets_did_you_mean():
+    with pytest.raises(InputError, match="did you mean 'absorber'"):
+        load_scenario(BASE + "\n[absorbr]\nx = 1\n")
+
+
+def test_density_and_resistivity_together_rejected():
+    with pytest.raises(InputError, match="resistivity_ohm_cm.*not both"):
+        load_scenario(BASE + 'resistivity_ohm_cm = 1.0\ndopant = "n"\n')
+
+
+def test_resistivity_needs_dopant_type():
+    text = BASE.replace("donors_cm3 = 1e15", "resistivity_ohm_cm = 1.0")
+    with pytest.raises(InputError, match="absorber.dopant"):
+        load_scenario(text)
+
+
+def test_sweep_log_linear_list_and_grid_size():
+    text = BASE + """
+[sweep]
+"absorber.temperature_K" = { linear = [250, 350], points = 5 }
+"absorber.donors_cm3" = { log = [1e14, 1e17], points = 4 }
+"absorber.thickness_um" = [100, 200]
+"""
+    sc = load_scenario(text)
+    axes = {a.key: a.values for a in sc.sweep}
+    np.testing.assert_allclose(axes["absorber.temperature_K"], [250, 275, 300, 325, 350])   # arithmetic
+    np.testing.assert_allclose(axes["absorber.donors_cm3"], [1e14, 1e15, 1e16, 1e17])       # arithmetic
+    assert sc.n_points == 5 * 4 * 2                                                         # outer product
+
+
+@pytest.mark.parametrize("spec", ['{ log = [0, 1], points = 3 }', '{ log = [1, 2] }', '[]',
+                                  '{ linear = [1, 2], points = 0 }'])
+def test_bad_sweep_specs(spec):
+    with pytest.raises(InputError, match="sweep"):
+        load_scenario(BASE + f'\n[sweep]\n"absorber.temperature_K" = {spec}\n')
+
+
+def test_sweep_of_unknown_key_rejected():
+    with pytest.raises(InputError, match="absorber.temprature_K"):
+        load_scenario(BASE + '\n[sweep]\n"absorber.temprature_K" = [1, 2]\n')
+
+
+def test_with_values_and_keyword_form():
+    sc = load_scenario(BASE)
+    a = sc.with_values({"absorber.temperature_K": 250.0})
+    b = sc.with_values(absorber__temperature_K=250.0)
+    assert a.get("absorber.temperature_K") == b.get("absorber.temperature_K") == 250.0
+    assert sc.get("absorber.temperature_K") == 300      # the original is unchanged (frozen)
+
+
+def test_fixed_value_replaces_a_sweep_of_that_key():
+    sc = load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = [250, 300]\n')
+    assert sc.with_values({"absorber.temperature_K": 280.0}).n_points == 1
+
+
+def test_parse_value_toml_then_string():
+    assert parse_value("0.1") == 0.1
+    assert parse_value("true") is True
+    assert parse_value("[1, 2]") == [1, 2]
+    assert parse_value("AM1.5G") == "AM1.5G"
+
+
+@pytest.mark.parametrize("key,unit", [("absorber.temperature_K", "K"), ("absorber.donors_cm3", "cm-3"),
+                                      ("light.suns", "suns"), ("generation_average_cm3_s", "cm-3 s-1"),
+                                      ("photocurrent_mA_cm2", "mA cm-2"), ("implied_voc_V", "V")])
+def test_unit_from_key_suffix(key, unit):
+    assert unit_of(key) == unit

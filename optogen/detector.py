@@ -13,7 +13,7 @@ from dataclasses import dataclass, fields
 import numpy as np
 from scipy.optimize import brentq
 
-from .constants import h_J_s, c_m_s, hc_eV_nm, q_C
+from .constants import h_J_s, c_m_s, hc_eV_nm, k_B_eV_K, q_C
 from .transport import conductivity_S_cm
 from .errors import InputError, check_range, did_you_mean
 
@@ -456,4 +456,51 @@ def photoconductor_figures(detector, thickness_cm, n0_cm3, p0_cm3, n_cm3, p_cm3,
         "background_generation_cm3_s": g_bg,
         "background_limited": background_limited(g_th, g_bg),
         "detectivity_cm_Hz05_W": d_star,
+    }
+
+
+def photodiode_figures(detector, thickness_cm, T_K, ni_eff_cm3, n0_cm3, p0_cm3, n_cm3, p_cm3,
+                       minority_D_cm2_s, tau_dark_s, rear_S_cm_s, photocurrent_mA_cm2,
+                       optical_generation_cm3_s, background_generation_cm3_s, irradiance_W_m2):
+    """The detector figures of a one-sided junction on this absorber (the base), units in the keys.
+
+    Dark current density: the diffusion-limited J0 of the base, thick-base
+    (`j0_thick_base_mA_cm2`) and thin-base with the rear recombination velocity
+    (`j0_base_mA_cm2`), at the bias V as J_dark = J0 |exp(qV/kT) - 1| (ideal
+    diode, Shockley 1949; Sze & Ng 2007 eq. 2.64).  Photocurrent: every
+    photogenerated carrier collected (the generation layer's photocurrent,
+    an upper bound).  Responsivity = J_ph / irradiance.  D*: shot-noise limit
+    R / sqrt(2 q J_dark) under bias, R / sqrt(4 q J0) at zero bias
+    (`detectivity_shot_cm_Hz05_W`; Rogalski 2011, ch. 3 and 12).
+
+    thickness_cm: base width [cm]; T_K [K]; ni_eff_cm3 [cm^-3]; n0_cm3, p0_cm3,
+    n_cm3, p_cm3: dark and illuminated densities [cm^-3]; minority_D_cm2_s:
+    minority diffusivity in the base [cm^2/s]; tau_dark_s: low-injection lifetime [s];
+    rear_S_cm_s [cm/s]; photocurrent_mA_cm2 [mA/cm^2]; optical_/background_generation_cm3_s
+    [cm^-3 s^-1]; irradiance_W_m2: incident irradiance of the source [W m^-2].
+    """
+    require_mode(detector, "photodiode", "photodiode_figures")
+    n0, p0 = _arr(n0_cm3), _arr(p0_cm3)
+    N = np.abs(n0 - p0)
+    j0_thick = j0_thick_base_mA_cm2(ni_eff_cm3, N, minority_D_cm2_s, tau_dark_s)
+    j0_thin = j0_base_mA_cm2(ni_eff_cm3, N, minority_D_cm2_s, tau_dark_s, thickness_cm, rear_S_cm_s)
+    v_over_kT = detector.bias_V / (k_B_eV_K * _arr(T_K))
+    j_dark = j0_thin * np.abs(np.expm1(v_over_kT))
+    zero_bias = detector.bias_V == 0
+    j_noise = j0_thin if zero_bias else j_dark
+    jph = _arr(photocurrent_mA_cm2)
+    irr = _arr(irradiance_W_m2)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        resp = np.where(irr > 0, jph * 1e-3 / np.where(irr > 0, irr * 1e-4, 1.0), np.nan)
+        d_star = resp / np.sqrt((4.0 if zero_bias else 2.0) * q_C * j_noise * 1e-3)
+    g_th = thermal_generation_cm3_s(n0, p0, tau_dark_s)
+    g_bg = _arr(background_generation_cm3_s)
+    return {
+        "dark_current_density_thick_base_mA_cm2": j0_thick * np.abs(np.expm1(v_over_kT)),
+        "dark_current_density_mA_cm2": j_dark, "j0_thick_base_mA_cm2": j0_thick, "j0_thin_base_mA_cm2": j0_thin,
+        "dark_current_A": j_dark * 1e-3 * detector.area_cm2, "photocurrent_A": jph * 1e-3 * detector.area_cm2,
+        "responsivity_A_W": resp, "detectivity_cm_Hz05_W": d_star,
+        "minority_ratio": np.where(n0 >= p0, _arr(p_cm3) / p0, _arr(n_cm3) / n0),
+        "thermal_generation_cm3_s": g_th, "optical_generation_cm3_s": _arr(optical_generation_cm3_s),
+        "background_generation_cm3_s": g_bg, "background_limited": background_limited(g_th, g_bg),
     }

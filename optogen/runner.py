@@ -205,9 +205,75 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
         out["steady_state"]["converged"] = np.asarray(ss.converged) * ones
         if np.any(unconverged):
             extra["warnings"] = [f"{int(unconverged.sum())} operating point(s) did not converge; they are flagged"]
+        out["steady_state"]["photoconductance_S"] = _photoconductance(setup, eq, ss, T, nd, na)
+        if "detector" in sc.data:
+            out["detector"] = _detector_block(setup, eq, ss, T, nd, na, out)
     if details:
         out["_details"] = extra
     return out
+
+
+def _mobilities(setup, T, nd, na, n, p):
+    from .transport import mobility_cm2_Vs
+    return mobility_cm2_Vs(setup.material, T, nd, na, n, p)
+
+
+def _photoconductance(setup, eq, ss, T, nd, na):
+    """Photoconductance Delta sigma W [S] (sheet), with injection-dependent mobilities."""
+    from .transport import conductivity_S_cm
+    n0, p0 = np.ravel(eq.n0_cm3), np.ravel(eq.p0_cm3)
+    n, p = np.ravel(ss.n_cm3), np.ravel(ss.p_cm3)
+    sigma0 = conductivity_S_cm(n0, p0, *_mobilities(setup, T, nd, na, n0, p0))
+    sigma = conductivity_S_cm(n, p, *_mobilities(setup, T, nd, na, n, p))
+    return (sigma - sigma0) * setup.thickness_cm
+
+
+def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
+    """The `detector` JSON block: dark against illuminated, gain, responsivity, D*, background."""
+    from . import detector as det
+    from .steady_state import solve
+    d = det.detector_from_table(setup.scenario.section("detector"))
+    rec = setup.recombination
+    n = T.size
+    n0, p0 = np.ravel(eq.n0_cm3), np.ravel(eq.p0_cm3)
+    tau_dark = np.ravel(solve(setup.material, eq, rec, np.zeros(n), setup.thickness_cm, with_ff=False).tau_eff_s)
+    gen = out.get("generation", {})
+    g_opt = gen.get("average_cm3_s", np.zeros(n))
+    g_bg = gen.get("background_average_cm3_s", np.zeros(n))
+    g_bg = np.where(np.isnan(g_bg), 0.0, g_bg)
+    irr = out.get("light", {}).get("irradiance_W_m2", np.zeros(n))
+    if d.mode == "photoconductor":
+        mu_dark = _mobilities(setup, T, nd, na, n0, p0)
+        mu_light = _mobilities(setup, T, nd, na, np.ravel(ss.n_cm3), np.ravel(ss.p_cm3))
+        block = det.photoconductor_figures(d, setup.thickness_cm, n0, p0, np.ravel(ss.n_cm3), np.ravel(ss.p_cm3),
+                                           mu_dark, mu_light, np.ravel(ss.tau_eff_s), tau_dark, g_opt, g_bg, irr)
+    else:
+        from .transport import diffusivity_cm2_s
+        mu_e, mu_h = _mobilities(setup, T, nd, na, n0, p0)
+        D_min = diffusivity_cm2_s(np.where(n0 >= p0, mu_h, mu_e), T)
+        rear_S = d.rear_S_cm_s if d.rear_S_cm_s is not None else (rec.rear_S_cm_s or 0.0)
+        block = det.photodiode_figures(d, setup.thickness_cm, T, np.ravel(eq.ni_eff_cm3), n0, p0,
+                                       np.ravel(ss.n_cm3), np.ravel(ss.p_cm3), D_min, tau_dark, rear_S,
+                                       gen.get("photocurrent_mA_cm2", np.zeros(n)), g_opt, g_bg, irr)
+    block["mode"] = np.full(n, d.mode, dtype=object)
+    return {k: (np.broadcast_to(v, (n,)).copy() if np.ndim(v) == 0 or np.size(v) == 1 else np.ravel(v))
+            for k, v in block.items()}
+
+
+def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.0):
+    """Temperature where the pixel becomes background-limited (root solve over temperature).
+
+    Thermal generation n0 p0 / ((n0 + p0) tau) against the background's
+    generation, both from the full pipeline at each trial temperature.
+    Returns `detector.BackgroundLimit` (temperature_K, found, note).
+    """
+    from .detector import background_limit_temperature_K
+
+    def fn(T):
+        T = np.atleast_1d(np.asarray(T, dtype=float))
+        b = evaluate(setup, {"absorber.temperature_K": T}, T.size)["detector"]
+        return b["thermal_generation_cm3_s"], b["background_generation_cm3_s"]
+    return background_limit_temperature_K(fn, T_low_K, T_high_K)
 
 
 def _block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
@@ -301,9 +367,17 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
         setup = build(sc)
         blocks = evaluate(setup, {}, 1, details=True)
         details = blocks.pop("_details")
+        details.update(_point_details(setup, details, blocks))
+        if "implied_jv" in details:
+            jv = details["implied_jv"]
+            blocks["implied_jv"] = {"voc_V": np.ravel(jv.voc_V), "vmp_V": np.ravel(jv.vmp_V),
+                                    "jmp_mA_cm2": np.ravel(jv.jmp_mA_cm2), "ff": np.ravel(jv.ff),
+                                    "pmax_mW_cm2": np.ravel(jv.pmax_mW_cm2),
+                                    "efficiency": np.ravel(np.nan if jv.efficiency is None else jv.efficiency)}
         ds = _dataset(blocks, (), [])
         ds = ds.isel({"point": 0}) if "point" in ds.dims else ds
         _attrs(ds, sc)
+        _background_limit_attrs(ds, setup)
         return Result(sc, ds, details, tuple(details.get("warnings", ())))
 
     chunk = int(chunk_size or sc.get("solver.chunk_size", DEFAULT_CHUNK))
@@ -354,7 +428,40 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     ds = _dataset(merged, [a.values.size for a in order], order)
     ds = ds.transpose(*[a.key for a in axes])
     _attrs(ds, sc)
+    if not slow:
+        _background_limit_attrs(ds, setup)
     return Result(sc, ds, {}, tuple(warnings))
+
+
+def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
+    """Curves behind a single point: implied J-V and lifetime against delta n."""
+    from .steady_state import implied_jv, lifetime_curve
+    out: dict[str, Any] = {"setup": setup}
+    eq, rec = details["equilibrium"], setup.recombination
+    if rec is None or "steady_state" not in details:
+        return out
+    lc = lifetime_curve(setup.material, eq, rec, setup.thickness_cm)
+    out["lifetime_curve"] = {k: np.ravel(getattr(lc, k)) for k in (
+        "delta_n_cm3", "tau_eff_s", "tau_srh_s", "tau_radiative_s", "tau_auger_s", "tau_surface_s")}
+    jph = float(blocks.get("generation", {}).get("photocurrent_mA_cm2", [0.0])[0])
+    irr = float(blocks.get("light", {}).get("irradiance_W_m2", [0.0])[0])
+    if jph > 0:
+        out["implied_jv"] = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph,
+                                       irradiance_W_m2=irr if irr > 0 else None)
+    return out
+
+
+def _background_limit_attrs(ds: xr.Dataset, setup: Setup) -> None:
+    """Record the background-limit temperature for a detector looking at a warm background."""
+    sc = setup.scenario
+    if "detector" not in sc.data or "background" not in sc.data or setup.recombination is None:
+        return
+    bl = background_limit(setup)
+    ds.attrs["background_limit_temperature_K"] = bl.temperature_K if bl.found else float("nan")
+    ds.attrs["background_limit_note"] = bl.note
+    for name in ("background_limit_temperature_K", "background_limit_note"):
+        ds[name] = ((), ds.attrs[name], {"units": "K" if name.endswith("_K") else "1",
+                                          "block": "detector", "key": name})
 
 
 def _concat(parts):

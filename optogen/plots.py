@@ -15,6 +15,8 @@ from pathlib import Path
 from typing import Mapping
 
 import numpy as np
+
+from .scenario import UNIT_SUFFIXES as _SCENARIO_UNITS
 from matplotlib.figure import Figure
 from matplotlib.ticker import LogLocator, MaxNLocator
 
@@ -26,26 +28,8 @@ from .errors import InputError
 # --------------------------------------------------------------------------
 
 #: unit suffix of a key -> unit as printed on an axis (longest suffix tried first)
-UNIT_SUFFIXES: dict[str, str] = {
-    "_cm3_s": "cm⁻³ s⁻¹",
-    "_mA_cm2": "mA cm⁻²",
-    "_fA_cm2": "fA cm⁻²",
-    "_W_m2": "W m⁻²",
-    "_ohm_cm": "Ω cm",
-    "_cm_s": "cm s⁻¹",
-    "_cm3": "cm⁻³",
-    "_cm2": "cm²",
-    "_A_W": "A W⁻¹",
-    "_deg": "°",
-    "_um": "µm",
-    "_nm": "nm",
-    "_eV": "eV",
-    "_K": "K",
-    "_V": "V",
-    "_W": "W",
-    "_S": "S",
-    "_s": "s",
-}
+UNIT_SUFFIXES: dict[str, str] = {"_" + k: people for k, (_, people) in _SCENARIO_UNITS.items()
+                                 if k != "suns"}
 _SUFFIX_ORDER = sorted(UNIT_SUFFIXES, key=len, reverse=True)
 
 #: swept keys with a name a reader recognises at once

@@ -538,6 +538,16 @@ class Recombination:
         """
         return PreparedRates(self, material, eq, thickness_cm, shape, index)
 
+    def j0_at_fA_cm2(self, material, T_K, side: str):
+        """J0 of the "front" or "rear" surface at temperature T_K [fA/cm^2] (None if given as S).
+
+        Scaled by n_i^2(T) / n_i^2(J0_reference_K) as in the rates.
+        """
+        j0 = getattr(self, f"{side}_J0_fA_cm2")
+        if j0 is None or self.J0_reference_K is None:
+            return j0
+        return j0 * np.exp(_ln_ni2(material, T_K) - _ln_ni2(material, self.J0_reference_K))
+
     def rates(self, material, eq, delta_n_cm3, thickness_cm) -> dict:
         """Rates of every mechanism at excess density delta_n_cm3 [cm^-3 s^-1].
 

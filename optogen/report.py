@@ -185,6 +185,31 @@ def _point_summary(d) -> list[str]:
                    f"surface {_f(t['surface'], '.3g')} s")
         if ss.get("limiting_mechanism"):
             out.append(f"  limited by: {ss['limiting_mechanism']}")
+        if ss.get("photoconductance_S") is not None:
+            out.append(f"  photoconductance = {_f(ss['photoconductance_S'], '.4g')} S")
+    if "implied_jv" in d:
+        jv = d["implied_jv"]
+        out.append(f"  implied J-V: Vmp = {_f(jv['vmp_V'], '.4f')} V, Jmp = {_f(jv['jmp_mA_cm2'], '.4g')} mA/cm2, "
+                   f"implied efficiency = {_f(jv['efficiency'], '.4f')}")
+    if "profile" in d:
+        pr = d["profile"]
+        out.append("")
+        out.append(f"  depth-resolved ({pr['plane']} plane for the levels above): delta n front "
+                   f"{_f(pr['front_delta_n_cm3'])}, rear {_f(pr['rear_delta_n_cm3'])}, average "
+                   f"{_f(pr['average_delta_n_cm3'])} cm-3, min/max {_f(pr['uniformity'], '.3f')}")
+        out.append(f"  uniform approximation error: implied Voc {_f(pr['uniform_error_implied_voc_mV'], '+.2f')} mV, "
+                   f"average delta n {_f(100 * pr['uniform_error_average_delta_n'], '+.1f')} %")
+    if "detector" in d:
+        out += _detector_summary(d["detector"])
+    return out
+
+
+def _detector_summary(det) -> list[str]:
+    out = ["", f"  detector ({det['mode']}):"]
+    from .plots import axis_label
+    rows = [(axis_label(k), v) for k, v in det.items() if k != "mode"]
+    for name, v in rows:
+        out.append(f"    {name:<42} {_f(v)}")
     return out
 
 
@@ -235,7 +260,7 @@ def write_all(res, outdir: Path) -> list[Path]:
             c = curves["lifetime_curve"]
             figs.append(("lifetime_curve.png", plots.lifetime_curve(
                 c["delta_n_cm3"], {k[4:-2]: v for k, v in c.items() if k.startswith("tau_")},
-                operating_dn=float(np.ravel(ss.delta_n_cm3)[0]))))
+                operating_dn=_first(ss.delta_n_cm3))))
         if "generation_profile" in curves:
             c = curves["generation_profile"]
             figs.append(("generation_profile.png", plots.generation_profile(c["depth_cm"], c["generation_cm3_s"])))
@@ -243,16 +268,25 @@ def write_all(res, outdir: Path) -> list[Path]:
             c = curves["implied_jv"]
             jv = det["implied_jv"]
             figs.append(("implied_jv.png", plots.implied_jv(c["voltage_V"], c["current_mA_cm2"],
-                                                            vmp=float(jv.vmp_V), jmp=float(jv.jmp_mA_cm2),
-                                                            voc=float(jv.voc_V), ff=float(jv.ff))))
+                                                            vmp=_first(jv.vmp_V), jmp=_first(jv.jmp_mA_cm2),
+                                                            voc=_first(jv.voc_V), ff=_first(jv.ff))))
+        if "depth_profile" in curves:
+            c = curves["depth_profile"]
+            figs.append(("depth_profile.png", plots.depth_profile(
+                c["depth_cm"], c["delta_n_cm3"], c["generation_cm3_s"], c["electron_qfl_eV"], c["hole_qfl_eV"],
+                bandgap_eV=_first(eq.effective_gap_eV))))
         if ss is not None:
             figs.append(("band_diagram.png", plots.band_diagram(
-                float(np.ravel(eq.effective_gap_eV)[0]), float(np.ravel(eq.fermi_level_eV)[0]),
-                float(np.ravel(ss.electron_qfl_eV)[0]), float(np.ravel(ss.hole_qfl_eV)[0]),
-                intrinsic_level_eV=float(np.ravel(eq.intrinsic_level_eV)[0]))))
+                _first(eq.effective_gap_eV), _first(eq.fermi_level_eV),
+                _first(ss.electron_qfl_eV), _first(ss.hole_qfl_eV),
+                intrinsic_level_eV=_first(eq.intrinsic_level_eV))))
     for name, fig in figs:
         written.append(plots.save_figure(fig, outdir / name))
     return [p for p in written if p is not None]
+
+
+def _first(a) -> float:
+    return float(np.ravel(a)[0])
 
 
 def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
@@ -269,4 +303,10 @@ def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
     if "lifetime_curve" in det:
         lc = det["lifetime_curve"]
         out["lifetime_curve"] = {k: np.ravel(v) for k, v in lc.items()}
+    if "profile" in det:
+        p = det["profile"]
+        out["depth_profile"] = {"depth_cm": p["depth_cm"], "delta_n_cm3": np.ravel(p["delta_n_cm3"]),
+                                "generation_cm3_s": np.ravel(p["generation_cm3_s"]),
+                                "electron_qfl_eV": np.ravel(p["electron_qfl_eV"]),
+                                "hole_qfl_eV": np.ravel(p["hole_qfl_eV"])}
     return out

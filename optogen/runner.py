@@ -129,7 +129,7 @@ def _doping(setup: Setup, values: Mapping[str, np.ndarray]):
     return np.asarray(nd, dtype=float), np.asarray(na, dtype=float)
 
 
-def _generation(setup: Setup, spectrum, T):
+def _generation(setup: Setup, spectrum, T, depth_cm=None):
     """Generation results over temperature T (1-D array) for one spectrum."""
     from .generation import generate
     o = setup.optics
@@ -139,7 +139,7 @@ def _generation(setup: Setup, spectrum, T):
               page=setup.scenario.get("absorber.optical_page"), csv_path=_csv(setup.scenario))
     if "coating" in o:
         kw["coating"] = o["coating"]
-    g = generate(spectrum, setup.material, setup.thickness_cm, T_K=Tu, **kw)
+    g = generate(spectrum, setup.material, setup.thickness_cm, T_K=Tu, depth_cm=depth_cm, **kw)
     return g, inv
 
 
@@ -206,11 +206,115 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
         if np.any(unconverged):
             extra["warnings"] = [f"{int(unconverged.sum())} operating point(s) did not converge; they are flagged"]
         out["steady_state"]["photoconductance_S"] = _photoconductance(setup, eq, ss, T, nd, na)
+        if sc.get("solver.depth_resolved", False) and setup.spectrum is not None:
+            prof, extra["profile"] = _depth_resolved(setup, eq, ss, T, nd, na, scale)
+            out["profile"] = prof.pop("profile")
+            prof["steady_state"]["photoconductance_S"] = out["steady_state"]["photoconductance_S"]
+            out["steady_state"] = prof["steady_state"]
         if "detector" in sc.data:
             out["detector"] = _detector_block(setup, eq, ss, T, nd, na, out)
     if details:
         out["_details"] = extra
     return out
+
+
+VOC_PLANES = {"front": 0, "rear": -1}
+
+
+def _column(eq):
+    """The equilibrium with every array field given a trailing depth axis."""
+    changes = {f.name: np.asarray(getattr(eq, f.name))[..., None] for f in dataclasses.fields(eq)
+               if isinstance(getattr(eq, f.name), np.ndarray) and getattr(eq, f.name).dtype.kind == "f"}
+    return dataclasses.replace(eq, **changes)
+
+
+def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
+    """Depth-resolved steady state: Delta n(x) from the 1-D continuity equation (optogen.profile).
+
+    Returns the `steady_state` block at the stated plane (solver.voc_plane, default the
+    illuminated front x = 0) with depth-integrated lifetimes, the `profile` block, and the
+    curves for plots.
+    """
+    from . import profile as pr
+    from .materials import optical_constants
+    from .steady_state import state_at
+    from .transport import ambipolar_diffusivity_cm2_s, diffusivity_cm2_s
+    sc, mat, rec, W = setup.scenario, setup.material, setup.recombination, setup.thickness_cm
+    plane = str(sc.get("solver.voc_plane", "front")).lower()
+    if plane not in VOC_PLANES:
+        raise InputError("solver.voc_plane", plane, "front or rear")
+    n0, p0, ni_eff = (np.ravel(getattr(eq, k)) for k in ("n0_cm3", "p0_cm3", "ni_eff_cm3"))
+    col = _column(eq)
+
+    def d_amb(dn):
+        n, p = n0[:, None] + dn, p0[:, None] + dn
+        mu_e, mu_h = _mobilities(setup, T[:, None], nd[:, None], na[:, None], n, p)
+        return ambipolar_diffusivity_cm2_s(n, p, diffusivity_cm2_s(mu_e, T[:, None]),
+                                           diffusivity_cm2_s(mu_h, T[:, None]))
+
+    def bulk(dn):
+        r = rec.rates(mat, col, dn, W)
+        return r["srh"] + r["radiative"] + r["auger"]
+
+    def surface(side):
+        j0 = rec.j0_at_fA_cm2(mat, T, side)
+        if j0 is not None:
+            return pr.surface_J0(np.asarray(j0)[:, None] * np.ones((T.size, 1)), n0[:, None], p0[:, None],
+                                 ni_eff[:, None], field=f"recombination.{side}_J0_fA_cm2")
+        S = getattr(rec, f"{side}_S_cm_s")
+        return pr.surface_S(0.0 if S is None else S, field=f"recombination.{side}_S_cm_s")
+
+    # mesh: resolve 1/alpha of the light that carries photons and the diffusion length
+    spec = setup.spectrum
+    flux = spec.photon_flux_cm2_s_nm
+    carried = flux >= 0.01 * flux.max()
+    oc = optical_constants(mat, spec.wavelength_nm[carried], float(np.max(T)),
+                           page=sc.get("absorber.optical_page"), csv_path=_csv(sc))
+    alpha = np.max(np.where(oc.alpha_cm1 > 0, oc.alpha_cm1, 0.0))
+    L = np.sqrt(np.ravel(d_amb(np.ravel(ss.delta_n_cm3)[:, None]))[: T.size] * np.ravel(ss.tau_eff_s))
+    lengths = [x for x in (1.0 / alpha if alpha > 0 else None, float(np.min(L))) if x and np.isfinite(x)]
+    x = pr.mesh(W, int(sc.get("solver.nodes", 200)), lengths or None)
+    g, inv = _generation(setup, spec, T, depth_cm=x)
+    G = np.reshape(g.profile_cm3_s, (-1, x.size))[inv] * np.asarray(scale)[:, None]
+    if setup.background is not None:
+        gb, invb = _generation(setup, setup.background, T, depth_cm=x)
+        G = G + np.reshape(gb.profile_cm3_s, (-1, x.size))[invb]
+    sol = pr.solve_profile(x, G, pr.with_derivative(bulk), pr.with_derivative(d_amb),
+                           surface("front"), surface("rear"))
+    dn_x = sol.delta_n_cm3
+    i = VOC_PLANES[plane]
+    st = state_at(mat, eq, rec, dn_x[:, i], W)
+    # lifetimes from depth-integrated losses: tau_x = <dn> W / integral(U_x dx)
+    avg = sol.average_cm3()
+    r = rec.rates(mat, col, dn_x, W)
+    losses = {"srh": r["srh"] @ sol.control_volume_cm, "radiative": r["radiative"] @ sol.control_volume_cm,
+              "auger": r["auger"] @ sol.control_volume_cm, "surface": sol.front_loss_cm2_s + sol.rear_loss_cm2_s}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        taus = {k: np.where(v > 0, avg * W / np.where(v > 0, v, 1.0), np.inf) for k, v in losses.items()}
+        tau_eff = np.where(sol.generation_cm2_s > 0, avg * W / sol.generation_cm2_s, ss.tau_eff_s)
+    names = np.array(list(losses))
+    steady = {k: np.asarray(st[k]) for k in ("delta_n_cm3", "delta_p_cm3", "n_cm3", "p_cm3", "np_over_ni2",
+                                             "splitting_eV", "implied_voc_V", "electron_qfl_eV", "hole_qfl_eV",
+                                             "injection_ratio", "log10_np_over_ni2")}
+    steady.update({"implied_ff": np.full(T.size, np.nan), "tau_eff_s": tau_eff,
+                   **{f"tau_s.{k}": v for k, v in taus.items()},
+                   "limiting_mechanism": names[np.argmax(np.stack(list(losses.values())), axis=0)],
+                   "converged": (np.asarray(sol.converged) & np.asarray(ss.converged)) * 1.0})
+    uni_voc = np.ravel(ss.implied_voc_V)
+    profile_block = {
+        "plane": np.full(T.size, plane, dtype=object),
+        "front_delta_n_cm3": sol.front_cm3(), "rear_delta_n_cm3": sol.rear_cm3(),
+        "average_delta_n_cm3": avg, "uniformity": sol.uniformity(),
+        "uniform_implied_voc_V": uni_voc,
+        "uniform_error_implied_voc_mV": (uni_voc - steady["implied_voc_V"]) * 1e3,
+        "uniform_error_average_delta_n": np.ravel(ss.delta_n_cm3) / avg - 1.0,
+        "nodes": np.full(T.size, float(x.size)), "converged": np.asarray(sol.converged) * 1.0,
+    }
+    qfl = state_at(mat, col, rec, dn_x, W)
+    curves = {"depth_cm": x, "delta_n_cm3": dn_x, "generation_cm3_s": G,
+              "electron_qfl_eV": qfl["electron_qfl_eV"], "hole_qfl_eV": qfl["hole_qfl_eV"],
+              "dataarray": sol.to_dataarray()}
+    return {"steady_state": steady, "profile": profile_block}, curves
 
 
 def _mobilities(setup, T, nd, na, n, p):

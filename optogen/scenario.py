@@ -32,7 +32,7 @@ SECTIONS: dict[str, set[str] | None] = {
     "background": {"temperature_K", "field_of_view_deg", "emissivity"},
     "detector": {"mode", "electrode_spacing_um", "width_um", "bias_V", "junction_side_doping_cm3",
                  "bandwidth_Hz", "rear_S_cm_s"},
-    "solver": {"depth_resolved", "nodes", "chunk_size"},
+    "solver": {"depth_resolved", "nodes", "chunk_size", "voc_plane"},
     "sweep": None,
 }
 TOP_LEVEL = {"title", "description", *SECTIONS}
@@ -109,20 +109,25 @@ class Scenario:
 def unit_of(key: str) -> str:
     """The unit encoded in a key's suffix ("absorber.temperature_K" -> "K")."""
     name = key.split(".")[-1]
-    for suffix, unit in _UNIT_SUFFIXES:
+    for suffix in _SUFFIX_ORDER:
         if name.endswith("_" + suffix) or name == suffix:
-            return unit
+            return UNIT_SUFFIXES[suffix][0]
     return "1"
 
 
-_UNIT_SUFFIXES = [
-    ("cm3_s", "cm-3 s-1"), ("cm2_s", "cm-2 s-1"), ("W_m2_nm", "W m-2 nm-1"), ("mA_cm2", "mA cm-2"),
-    ("fA_cm2", "fA cm-2"), ("W_m2", "W m-2"), ("cm_s", "cm s-1"), ("ohm_cm", "ohm cm"),
-    ("cm2_Vs", "cm2 V-1 s-1"), ("S_cm", "S cm-1"), ("A_W", "A W-1"), ("cm3", "cm-3"), ("cm2", "cm2"),
-    ("um", "um"), ("nm", "nm"), ("mm", "mm"), ("cm", "cm"), ("eV", "eV"), ("K", "K"), ("V", "V"),
-    ("s", "s"), ("W", "W"), ("A", "A"), ("S", "S"), ("deg", "degree"), ("Hz", "Hz"),
-    ("suns", "suns"), ("Jones", "cm Hz1/2 W-1"),
-]
+#: key suffix -> (unit for file attributes, unit for people); the longest matching suffix wins
+UNIT_SUFFIXES: dict[str, tuple[str, str]] = {
+    "cm3_s": ("cm-3 s-1", "cm⁻³ s⁻¹"), "cm2_s": ("cm-2 s-1", "cm⁻² s⁻¹"),
+    "W_m2_nm": ("W m-2 nm-1", "W m⁻² nm⁻¹"), "mA_cm2": ("mA cm-2", "mA cm⁻²"),
+    "fA_cm2": ("fA cm-2", "fA cm⁻²"), "W_m2": ("W m-2", "W m⁻²"), "cm_s": ("cm s-1", "cm s⁻¹"),
+    "ohm_cm": ("ohm cm", "Ω cm"), "cm2_Vs": ("cm2 V-1 s-1", "cm² V⁻¹ s⁻¹"), "S_cm": ("S cm-1", "S cm⁻¹"),
+    "cm_Hz05_W": ("cm Hz1/2 W-1", "cm Hz½ W⁻¹"), "mW_cm2": ("mW cm-2", "mW cm⁻²"),
+    "A_W": ("A W-1", "A W⁻¹"), "cm3": ("cm-3", "cm⁻³"), "cm2": ("cm2", "cm²"), "um": ("um", "µm"),
+    "nm": ("nm", "nm"), "mm": ("mm", "mm"), "cm": ("cm", "cm"), "eV": ("eV", "eV"), "mV": ("mV", "mV"),
+    "K": ("K", "K"), "V": ("V", "V"), "s": ("s", "s"), "W": ("W", "W"), "A": ("A", "A"), "S": ("S", "S"),
+    "deg": ("degree", "°"), "Hz": ("Hz", "Hz"), "suns": ("suns", "suns"),
+}
+_SUFFIX_ORDER = sorted(UNIT_SUFFIXES, key=len, reverse=True)
 
 
 def _set_dotted(data: dict, key: str, value) -> None:

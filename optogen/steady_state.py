@@ -478,3 +478,21 @@ def lifetime_curve(material, eq, recombination: Recombination, thickness_cm, del
     with np.errstate(divide="ignore"):
         taus = [np.moveaxis((d / x).reshape(shape), 0, -1) for x in (sum(r), *r)]
     return LifetimeCurve(dn, *taus)
+
+
+def state_at(material, eq, recombination: Recombination, delta_n_cm3, thickness_cm) -> dict:
+    """Every steady-state quantity at a given excess density, without solving G = U.
+
+    For a depth-resolved profile: the state at a chosen plane.  Arrays of the
+    broadcast shape of eq and delta_n_cm3; keys as `SteadyState` fields
+    (delta_n_cm3 [cm^-3], splitting_eV [eV], tau_*_s [s], ...).
+    """
+    dn = np.asarray(delta_n_cm3, dtype=float)
+    check_range("delta_n_cm3", dn, 0.0, None, unit="cm^-3")
+    shape = np.broadcast_shapes(_eq_shape(eq), dn.shape, np.shape(thickness_cm))
+    prep = recombination.prepare(material, eq, thickness_cm, shape)
+    st = _state_flat(prep, np.broadcast_to(dn, shape).reshape(-1))
+    code = st.pop("limiting_code")
+    out = {k: v.reshape(shape) for k, v in st.items()}
+    out["limiting_mechanism"] = np.array(MECHANISMS)[code].reshape(shape)
+    return out

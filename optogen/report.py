@@ -217,10 +217,13 @@ def _sweep_summary(res) -> list[str]:
     ds = res.dataset
     out = ["", "Sweep: " + " x ".join(f"{k} ({ds.sizes[k]} values, {float(ds[k].min()):.4g} .. "
                                         f"{float(ds[k].max()):.4g})" for k in ds.dims)]
-    for name in ("implied_voc_V", "tau_eff_s", "delta_n_cm3", "np_over_ni2", "n0_cm3", "p0_cm3"):
+    for name in ("implied_voc_V", "tau_eff_s", "delta_n_cm3", "np_over_ni2", "n0_cm3", "p0_cm3",
+                 "responsivity_A_W", "photoconductive_gain", "conductivity_contrast", "minority_ratio"):
         if name in ds:
             v = ds[name].values.astype(float)
             out.append(f"  {name:<16} {np.nanmin(v):>12.4g} .. {np.nanmax(v):<12.4g}")
+    if "background_limit_note" in ds.attrs:
+        out.append(f"  background limit: {ds.attrs['background_limit_note']}")
     return out
 
 
@@ -244,11 +247,13 @@ def write_all(res, outdir: Path) -> list[Path]:
             figs.append(("sweep_lines.png", plots.sweep_lines(ds)))
         elif len(dims) == 2 and "np_over_ni2" in ds:
             figs.append(("sweep_map.png", plots.sweep_map(ds)))
-        if len(dims) == 1 and "conductivity_contrast" in ds:
+        if len(dims) == 1 and "thermal_generation_cm3_s" in ds:
             crossing = ds.attrs.get("background_limit_temperature_K")
+            crossing = crossing if crossing is not None and np.isfinite(crossing) and "temperature" in dims[0] else None
             figs += [("detector_densities.png", plots.detector_densities(ds)),
-                     ("detector_generation.png", plots.detector_generation(ds, crossing=crossing)),
-                     ("detector_contrast.png", plots.detector_contrast(ds))]
+                     ("detector_generation.png", plots.detector_generation(ds, crossing=crossing))]
+            if "conductivity_contrast" in ds:
+                figs.append(("detector_contrast.png", plots.detector_contrast(ds)))
     else:
         det = res.details
         curves = point_curves(res)

@@ -117,6 +117,14 @@ def names() -> list[str]:
 # Standard spectra and measured files
 # ---------------------------------------------------------------------------
 
+def _spectra_dir():
+    """The bundled spectra: the installed package data, or spectra/ of a source tree."""
+    try:
+        return files("optogen.spectra")
+    except ModuleNotFoundError:     # imported from a checkout without installing
+        return Path(__file__).resolve().parent.parent / "spectra"
+
+
 def standard(name: str) -> Spectrum:
     """A standard spectrum as tabulated (not rescaled): "AM1.5G", "AM1.5D" or "AM0".
 
@@ -128,7 +136,7 @@ def standard(name: str) -> Spectrum:
     if key is None:
         raise InputError("light.source", name, "one of " + ", ".join(names()),
                          did_you_mean(normalise(name), [normalise(n) for n in names()]))
-    wl, values, _ = read_columns(files("optogen.spectra").joinpath(STANDARD[key][0]),
+    wl, values, _ = read_columns(_spectra_dir().joinpath(STANDARD[key][0]),
                                  ("irradiance_W_m2_nm",), field="light.source")
     return Spectrum(wl, values, key)
 

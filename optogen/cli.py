@@ -7,6 +7,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import warnings
 from pathlib import Path
 
 from . import __version__
@@ -100,8 +101,12 @@ def _dispatch(args) -> int:
                          "add --yes, and --out DIR to keep the result on disk")
     from .runner import run
     from . import report
-    res = run(sc, progress=False if (args.quiet or args.json) else None,
-              workers=args.workers, scheduler=args.scheduler)
+    with warnings.catch_warnings(record=True) as caught:     # one line each, no source lines
+        warnings.simplefilter("always")
+        res = run(sc, progress=False if (args.quiet or args.json) else None,
+                  workers=args.workers, scheduler=args.scheduler)
+    for w in caught:
+        print(f"optogen: warning: {' '.join(str(w.message).split())}", file=sys.stderr)
     written = report.write_all(res, Path(args.out)) if args.out else []
     if args.json:
         print(json.dumps(res.to_dict(), indent=2, allow_nan=False))

@@ -498,23 +498,34 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     slow_combos = list(itertools.product(*[range(a.values.size) for a in slow]))
 
     client = _dask_client(workers, scheduler) if (workers or scheduler) else None
-    results: list[dict[str, dict[str, np.ndarray]]] = []
+    total = len(slow_combos) * n_fast
+    merged: dict[str, dict[str, np.ndarray]] = {}     # filled in place: no second copy of the grid
+
+    def store(offset, part):
+        for block, vals in part.items():
+            for k, v in vals.items():
+                dest = merged.setdefault(block, {})
+                if k not in dest:       # a block absent from some groups stays NaN / "" there
+                    dest[k] = (np.full(total, np.nan) if v.dtype.kind == "f"
+                               else np.full(total, "", dtype=object) if v.dtype.kind in "OU"
+                               else np.zeros(total, dtype=v.dtype))
+                dest[k][offset:offset + v.size] = v
+
     warnings: list[str] = []
     bar = _progress(progress, total=len(slow_combos) * math.ceil(n_fast / chunk))
     try:
-        for combo in slow_combos:
+        for g, combo in enumerate(slow_combos):
             fixed = {a.key: a.values[i].item() for a, i in zip(slow, combo)}
             sc_g = sc.with_values(fixed) if fixed else sc
             setup = build(sc_g, unit_scaling)
             if client is None:
-                parts = []
                 for start in range(0, n_fast, chunk):
                     sl = slice(start, min(start + chunk, n_fast))
-                    parts.append(evaluate(setup, {k: v[sl] for k, v in fast_flat.items()}, sl.stop - sl.start))
+                    store(g * n_fast + start,
+                          evaluate(setup, {k: v[sl] for k, v in fast_flat.items()}, sl.stop - sl.start))
                     bar.update(1)
-                results.append(_concat(parts))
             else:
-                results.append(_evaluate_dask(client, setup, fast_flat, n_fast, chunk))
+                store(g * n_fast, _evaluate_dask(client, setup, fast_flat, n_fast, chunk))
                 bar.update(math.ceil(n_fast / chunk))
     finally:
         bar.close()
@@ -522,7 +533,6 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
             cluster = client.cluster
             client.close()
             cluster.close()
-    merged = _concat(results)
     if "steady_state" in merged and "converged" in merged["steady_state"]:
         bad = int(np.sum(merged["steady_state"]["converged"] == 0))
         if bad:
@@ -566,13 +576,6 @@ def _background_limit_attrs(ds: xr.Dataset, setup: Setup) -> None:
     for name in ("background_limit_temperature_K", "background_limit_note"):
         ds[name] = ((), ds.attrs[name], {"units": "K" if name.endswith("_K") else "1",
                                           "block": "detector", "key": name})
-
-
-def _concat(parts):
-    out: dict[str, dict[str, np.ndarray]] = {}
-    for block in parts[0]:
-        out[block] = {k: np.concatenate([p[block][k] for p in parts]) for k in parts[0][block]}
-    return out
 
 
 def _dataset(blocks, shape, axes) -> xr.Dataset:

@@ -36,13 +36,16 @@ DEFAULT_CHUNK = 100_000
 
 #: Dataset variable names where the JSON key alone would be unclear or clash
 RENAME = {("generation", "average_cm3_s"): "generation_average_cm3_s",
-          ("generation", "background_average_cm3_s"): "background_generation_cm3_s"}
+          ("generation", "background_average_cm3_s"): "background_generation_cm3_s",
+          ("profile", "converged"): "profile_converged"}
 
 
 def var_name(block: str, key: str) -> str:
     """The Dataset / CSV variable name of a JSON key ("tau_s.srh" -> "tau_srh_s")."""
     if (block, key) in RENAME:
         return RENAME[(block, key)]
+    if block == "implied_jv":              # figures of the J-V curve: jv_vmp_V, jv_ff, ...
+        return f"jv_{key}"
     if "." in key:                       # nested: tau_s.srh -> tau_srh_s
         outer, inner = key.split(".", 1)
         stem, _, unit = outer.rpartition("_")
@@ -584,14 +587,12 @@ def _dataset(blocks, shape, axes) -> xr.Dataset:
     data_vars = {}
     for block, vals in blocks.items():
         for key, arr in vals.items():
-            name = "converged" if key == "converged" else var_name(block, key)
+            name = var_name(block, key)
             arr = np.asarray(arr)
             if name == "converged":
                 arr = arr.astype(bool)
-            unit = "1" if name in ("converged", "np_over_ni2", "implied_ff", "absorbed_fraction",
-                                   "injection_ratio") else unit_of(name)
             data_vars[name] = (dims, arr.reshape(shape),
-                               {"units": unit, "block": block, "key": key})
+                               {"units": unit_of(name), "block": block, "key": key})
     coords = {a.key: (a.key, a.values, {"units": a.unit}) for a in axes} if axes else {}
     return xr.Dataset(data_vars, coords=coords)
 

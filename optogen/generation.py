@@ -239,8 +239,15 @@ def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0,
             raise InputError("optics.coating", coating, "give either a coating or optics.front_reflectance, not both")
         front_reflectance = coating
     T = np.asarray(T_K, float)
-    wl = spectrum.wavelength_nm
+    wl, flux = spectrum.wavelength_nm, spectrum.photon_flux_cm2_s_nm
+    # a negligible tail below the optical data (a hot blackbody's far UV) is dropped;
+    # a real share of the light there is an error (raised by optical_constants)
+    short = wl < materials.shortest_wavelength_nm(material, T, page=page, csv_path=csv_path)
+    if short.any() and not short.all():
+        w = trapezoid_weights(wl)
+        if np.sum(flux[short] * w[short]) <= 1e-6 * np.sum(flux * w):
+            wl, flux = wl[~short], flux[~short]
     oc = materials.optical_constants(material, wl, T[..., None], page=page, csv_path=csv_path)
     Rf = optics.front_reflectance(front_reflectance, wl, oc.n, oc.k, base_dir=base_dir)
-    return compute(wl, spectrum.photon_flux_cm2_s_nm, oc.alpha_cm1, oc.n, thickness_cm, Rf, rear_reflectance,
+    return compute(wl, flux, oc.alpha_cm1, oc.n, thickness_cm, Rf, rear_reflectance,
                    light_path, depth_cm, temperature_K=T)

@@ -1174,7 +1174,7 @@ def _from_table(material: Material, tab: _Table, E, Eg, T):
     if np.any(short):
         i = np.flatnonzero(short.ravel())[0]
         lam_min = 1000.0 * _HC_eV_um / (_HC_eV_um / lo + dEg.ravel()[i])
-        raise InputError("wavelength_nm", 1000.0 * _HC_eV_um / E.ravel()[i],
+        raise InputError("light.wavelength_nm", round(float(1000.0 * _HC_eV_um / E.ravel()[i]), 2),
                          f">= {lam_min:.1f} nm for {material.name} at {T.ravel()[i]:g} K "
                          f"(data {tab.label} span {1000 * lo:.0f}-{1000 * hi:.0f} nm at 300 K, "
                          "shifted with Eg(T))", "choose another page or give optical_csv")
@@ -1237,6 +1237,26 @@ def optical_constants(material: Material, wavelength_nm, T_K=300.0, page=None, c
             n, alpha, label = _from_table(material, _load_page(*key), E, Eg, T)
     k = alpha * (lam * 1e-7) / (4.0 * np.pi)
     return OpticalConstants(n=n, k=k, alpha_cm1=alpha, source=label)
+
+
+def shortest_wavelength_nm(material: Material, T_K=300.0, page=None, csv_path=None) -> float:
+    """Shortest wavelength the optical data cover at temperature(s) T_K [nm] (0 for a parametric edge).
+
+    With several temperatures, the most restrictive (largest) limit.  The same
+    Eg(T) shift as `optical_constants`.
+    """
+    if csv_path is not None:
+        path = os.fspath(csv_path)
+        if not os.path.isfile(path):
+            return 0.0          # optical_constants reports the missing file
+        tab = _load_csv(path, os.path.getmtime(path))
+    else:
+        key = _resolve_page(material, page)
+        if key is None:
+            return 0.0
+        tab = _load_page(*key)
+    dEg = np.asarray(material.bandgap_eV(np.asarray(T_K, dtype=float))) - material.bandgap_eV(300.0)
+    return float(np.max(1000.0 * _HC_eV_um / (_HC_eV_um / tab.range_um[0] + dEg)))
 
 
 # ---------------------------------------------------------------------------

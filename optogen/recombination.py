@@ -195,9 +195,12 @@ class Defect:
                     1.0 / (self.sigma_p_cm2 * vh * np.asarray(self.density_cm3, float)))
 
     def level_from_ev_eV(self, effective_gap_eV, intrinsic_level_eV):
-        """Et - Ev [eV] given the gap and the intrinsic level (from Ev) [eV]; mid-gap (Ei) if no energy."""
+        """Et - Ev [eV] given the gap and the intrinsic level (from Ev) [eV]; mid-gap (Eg/2) if no energy.
+
+        Mid-gap, not E_i: in narrow-gap materials with unequal masses E_i can leave the gap.
+        """
         if self.energy_eV is None:
-            return np.asarray(intrinsic_level_eV, dtype=float)
+            return 0.5 * np.asarray(effective_gap_eV, dtype=float) + 0.0 * np.asarray(intrinsic_level_eV)
         if self.energy_ref == "Ev":
             return np.asarray(self.energy_eV, dtype=float) + 0.0 * np.asarray(effective_gap_eV)
         if self.energy_ref == "Ec":

@@ -24,7 +24,7 @@ import numpy as np
 import xarray as xr
 
 from . import __version__
-from .errors import InputError
+from .errors import InputError, check_range
 from .scenario import Scenario, SweepAxis, unit_of
 
 LIGHT_SCALING_KEYS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
@@ -36,7 +36,7 @@ DEFAULT_CHUNK = 100_000
 
 #: Dataset variable names where the JSON key alone would be unclear or clash
 RENAME = {("generation", "average_cm3_s"): "generation_average_cm3_s",
-          ("generation", "background_average_cm3_s"): "background_generation_cm3_s",
+          ("generation", "background_average_cm3_s"): "generation_background_average_cm3_s",
           ("profile", "converged"): "profile_converged"}
 
 
@@ -90,7 +90,6 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
     thickness_um = ab.get("thickness_um", 100.0 if "light" not in sc.data else None)
     if thickness_um is None:
         raise InputError("absorber.thickness_um", None, "a thickness > 0 um is needed under light")
-    from .errors import check_range
     check_range("absorber.thickness_um", thickness_um, 0.0, None, low_open=True, unit="um")
 
     spectrum = None
@@ -108,13 +107,36 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
     if "background" in sc.data:
         from . import light
         bg = sc.section("background")
-        background = light.blackbody(bg.get("temperature_K", 300.0), bg.get("field_of_view_deg", 90.0),
-                                     bg.get("emissivity", 1.0))
+        try:
+            background = light.blackbody(bg.get("temperature_K", 300.0), bg.get("field_of_view_deg", 90.0),
+                                         bg.get("emissivity", 1.0))
+        except InputError as exc:
+            raise InputError(exc.field.replace("light.", "background.", 1), exc.value, exc.allowed,
+                             exc.hint) from None
     recomb = None
     if "light" in sc.data or "recombination" in sc.data or "background" in sc.data:
         from .recombination import Recombination
         recomb = Recombination.from_table(sc.section("recombination"))
+    _validate_point_fields(sc)
     return Setup(sc, mat, float(thickness_um) * 1e-4, spectrum, background, recomb, sc.section("optics"))
+
+
+def _validate_point_fields(sc: Scenario) -> None:
+    """Checks that `optogen check` must make without running (values used later in the run)."""
+    ab = sc.section("absorber")
+    check_range("absorber.temperature_K", ab.get("temperature_K", 300.0), 0.0, None, low_open=True, unit="K")
+    for key in ("donors_cm3", "acceptors_cm3"):
+        if key in ab:
+            check_range(f"absorber.{key}", ab[key], 0.0, None, unit="cm^-3")
+    if "resistivity_ohm_cm" in ab:
+        check_range("absorber.resistivity_ohm_cm", ab["resistivity_ohm_cm"], 0.0, None, low_open=True,
+                    unit="ohm cm")
+    plane = str(sc.get("solver.voc_plane", "front")).lower()
+    if plane not in VOC_PLANES:
+        raise InputError("solver.voc_plane", plane, "front or rear")
+    if "detector" in sc.data:
+        from .detector import detector_from_table
+        detector_from_table(sc.section("detector"))
 
 
 def _doping(setup: Setup, values: Mapping[str, np.ndarray]):
@@ -123,13 +145,43 @@ def _doping(setup: Setup, values: Mapping[str, np.ndarray]):
     ab = sc.section("absorber")
     if "resistivity_ohm_cm" in ab:
         from .transport import resistivity_to_doping
-        rho = values.get("absorber.resistivity_ohm_cm", ab["resistivity_ohm_cm"])
+        rho = np.asarray(values.get("absorber.resistivity_ohm_cm", ab["resistivity_ohm_cm"]), dtype=float)
         N = resistivity_to_doping(setup.material, rho, ab["dopant"], T_K=RESISTIVITY_REFERENCE_K)
-        zero = np.zeros_like(np.asarray(N, dtype=float))
-        return (N, zero) if ab["dopant"] == "n" else (zero, N)
+        split = (lambda N: (N, 0.0 * N)) if ab["dopant"] == "n" else (lambda N: (0.0 * N, N))
+        if ab.get("incomplete_ionisation", True):
+            N = _match_resistivity(setup, rho, N, split)
+        return split(N)
     nd = values.get("absorber.donors_cm3", ab.get("donors_cm3", 0.0))
     na = values.get("absorber.acceptors_cm3", ab.get("acceptors_cm3", 0.0))
     return np.asarray(nd, dtype=float), np.asarray(na, dtype=float)
+
+
+def _equilibrium_kwargs(setup: Setup) -> dict:
+    ab = setup.scenario.section("absorber")
+    return dict(donor=ab.get("donor_species"), acceptor=ab.get("acceptor_species"), ni_model=ab.get("ni_model"),
+                bgn_model=getattr(setup.recombination, "bgn_model", None),
+                incomplete_ionisation=ab.get("incomplete_ionisation", True))
+
+
+def _match_resistivity(setup: Setup, rho, N, split, iterations: int = 20):
+    """Dopant density whose dark conductivity, with incomplete ionisation, is 1/rho at 300 K.
+
+    Starts from the full-ionisation answer (ASTM F723 convention) and rescales N by
+    (1/rho) / sigma(N) until they agree to 1e-12 (a few steps: sigma is nearly linear in N).
+    """
+    from .equilibrium import equilibrium
+    from .transport import conductivity_S_cm
+    T = np.full(np.shape(N), RESISTIVITY_REFERENCE_K)
+    for _ in range(iterations):
+        nd, na = split(N)
+        eq = equilibrium(setup.material, T, nd, na, **_equilibrium_kwargs(setup))
+        sigma = conductivity_S_cm(eq.n0_cm3, eq.p0_cm3,
+                                  *_mobilities(setup, T, nd, na, eq.n0_cm3, eq.p0_cm3))
+        ratio = 1.0 / (rho * sigma)
+        N = N * ratio
+        if np.all(np.abs(ratio - 1.0) < 1e-12):
+            break
+    return N
 
 
 def _generation(setup: Setup, spectrum, T, depth_cm=None):
@@ -163,15 +215,11 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
     ab = sc.section("absorber")
     ones = np.ones(n)
     T = ones * np.asarray(values.get("absorber.temperature_K", ab.get("temperature_K", 300.0)), dtype=float)
-    from .errors import check_range
     check_range("absorber.temperature_K", T, 0.0, None, low_open=True, unit="K")
     nd, na = _doping(setup, values)
     nd, na = ones * nd, ones * na
     rec = setup.recombination
-    eq = equilibrium(setup.material, T, nd, na, donor=ab.get("donor_species"), acceptor=ab.get("acceptor_species"),
-                     ni_model=ab.get("ni_model"),
-                     bgn_model=getattr(rec, "bgn_model", None),
-                     incomplete_ionisation=ab.get("incomplete_ionisation", True))
+    eq = equilibrium(setup.material, T, nd, na, **_equilibrium_kwargs(setup))
     out: dict[str, dict[str, Any]] = {"equilibrium": _block(eq.to_dict(), n)}
     extra: dict[str, Any] = {"equilibrium": eq}
     G = np.zeros(n)
@@ -244,8 +292,6 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
     from .transport import ambipolar_diffusivity_cm2_s, diffusivity_cm2_s
     sc, mat, rec, W = setup.scenario, setup.material, setup.recombination, setup.thickness_cm
     plane = str(sc.get("solver.voc_plane", "front")).lower()
-    if plane not in VOC_PLANES:
-        raise InputError("solver.voc_plane", plane, "front or rear")
     n0, p0, ni_eff = (np.ravel(getattr(eq, k)) for k in ("n0_cm3", "p0_cm3", "ni_eff_cm3"))
     col = _column(eq)
 
@@ -273,10 +319,13 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
     carried = flux >= 0.01 * flux.max()
     oc = optical_constants(mat, spec.wavelength_nm[carried], float(np.max(T)),
                            page=sc.get("absorber.optical_page"), csv_path=_csv(sc))
-    alpha = np.max(np.where(oc.alpha_cm1 > 0, oc.alpha_cm1, 0.0))
-    L = np.sqrt(np.ravel(d_amb(np.ravel(ss.delta_n_cm3)[:, None]))[: T.size] * np.ravel(ss.tau_eff_s))
-    lengths = [x for x in (1.0 / alpha if alpha > 0 else None, float(np.min(L))) if x and np.isfinite(x)]
-    x = pr.mesh(W, int(sc.get("solver.nodes", 200)), lengths or None)
+    alpha = np.ravel(oc.alpha_cm1)
+    absorbed = (alpha > 0) & (1.0 / np.where(alpha > 0, alpha, 1.0) < W)
+    L = float(np.min(np.sqrt(np.ravel(d_amb(np.ravel(ss.delta_n_cm3)[:, None]))[: T.size]
+                             * np.ravel(ss.tau_eff_s))))
+    lengths = np.append(1.0 / alpha[absorbed], L if np.isfinite(L) else W)
+    wl = np.append(spec.wavelength_nm[carried][absorbed], np.nan)
+    x = pr.mesh(W, int(sc.get("solver.nodes", 200)), lengths, wavelength_nm=wl)
     g, inv = _generation(setup, spec, T, depth_cm=x)
     G = np.reshape(g.profile_cm3_s, (-1, x.size))[inv] * np.asarray(scale)[:, None]
     if setup.background is not None:
@@ -358,13 +407,29 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
         from .transport import diffusivity_cm2_s
         mu_e, mu_h = _mobilities(setup, T, nd, na, n0, p0)
         D_min = diffusivity_cm2_s(np.where(n0 >= p0, mu_h, mu_e), T)
-        rear_S = d.rear_S_cm_s if d.rear_S_cm_s is not None else (rec.rear_S_cm_s or 0.0)
+        rear_S = _rear_S_cm_s(d, rec, setup.material, T, eq)
         block = det.photodiode_figures(d, setup.thickness_cm, T, np.ravel(eq.ni_eff_cm3), n0, p0,
                                        np.ravel(ss.n_cm3), np.ravel(ss.p_cm3), D_min, tau_dark, rear_S,
                                        gen.get("photocurrent_mA_cm2", np.zeros(n)), g_opt, g_bg, irr)
     block["mode"] = np.full(n, d.mode, dtype=object)
     return {k: (np.broadcast_to(v, (n,)).copy() if np.ndim(v) == 0 or np.size(v) == 1 else np.ravel(v))
             for k, v in block.items()}
+
+
+def _rear_S_cm_s(d, rec, material, T, eq):
+    """Rear recombination velocity for the thin-base J0: [detector] rear_S_cm_s, else the
+    [recombination] rear surface (S, or J0 as S_eff = J0 N / (q n_i,eff^2), low injection,
+    Kane & Swanson 1985), else 0 (a perfect rear) [cm/s]."""
+    from .constants import q_C
+    if d.rear_S_cm_s is not None:
+        return d.rear_S_cm_s
+    if rec.rear_S_cm_s is not None:
+        return rec.rear_S_cm_s
+    j0 = rec.j0_at_fA_cm2(material, T, "rear")
+    if j0 is None:
+        return 0.0
+    N = np.abs(np.ravel(eq.n0_cm3) - np.ravel(eq.p0_cm3))
+    return np.exp(np.log(j0 * 1e-15) + np.log(N) - np.log(q_C) - 2.0 * np.ravel(eq.ln_ni_eff_cm3))
 
 
 def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.0):
@@ -394,10 +459,12 @@ def _block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
             flat[k] = v
     res = {}
     for k, v in flat.items():
-        if isinstance(v, str) or (isinstance(v, (list, np.ndarray)) and np.asarray(v).dtype.kind in "UO"):
+        if isinstance(v, str) or np.asarray(v).dtype.kind == "U" or any(
+                isinstance(x, str) for x in np.ravel(np.asarray(v, dtype=object))):
             res[k] = np.broadcast_to(np.asarray(v, dtype=object), (n,)).copy()
             continue
-        a = np.asarray(np.nan if v is None else v, dtype=float)
+        a = np.asarray(v, dtype=object)
+        a = np.where(a == None, np.nan, a).astype(float)  # noqa: E711 (elementwise None test)
         res[k] = np.broadcast_to(a, (n,)).copy() if a.ndim == 0 or a.size == 1 else a.reshape(-1)
     return res
 
@@ -542,8 +609,11 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
             warnings.append(f"{bad} operating point(s) did not converge; see the 'converged' variable")
     # reorder from (slow..., fast...) to the scenario's axis order
     order = slow + fast
-    ds = _dataset(merged, [a.values.size for a in order], order)
-    ds = ds.transpose(*[a.key for a in axes])
+    perm = [order.index(a) for a in axes]
+    shape = [a.values.size for a in order]
+    merged = {b: {k: np.transpose(v.reshape(shape), perm).reshape(-1) for k, v in vals.items()}
+              for b, vals in merged.items()}
+    ds = _dataset(merged, [a.values.size for a in axes], axes)
     _attrs(ds, sc)
     if not slow:
         _background_limit_attrs(ds, setup)

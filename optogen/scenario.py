@@ -27,7 +27,7 @@ SECTIONS: dict[str, set[str] | None] = {
         "incomplete_ionisation", "optical_page", "optical_csv",
     },
     "light": None,
-    "optics": {"front_reflectance", "rear_reflectance", "light_path", "coating", "front_reflectance_file"},
+    "optics": {"front_reflectance", "rear_reflectance", "light_path", "coating"},
     "recombination": None,
     "background": {"temperature_K", "field_of_view_deg", "emissivity"},
     "detector": {"mode", "electrode_spacing_um", "width_um", "bias_V", "junction_side_doping_cm3",

@@ -176,11 +176,6 @@ def test_dark_conductivity_round_trips_resistivity_full_ionisation(rho, kind):
     assert d["detector"]["sigma_dark_S_cm"] == pytest.approx(1.0 / rho, rel=1e-6)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "runner._doping turns resistivity_ohm_cm into a dopant density with "
-    "transport.resistivity_to_doping (full ionisation, ASTM F723), but evaluate() then solves the "
-    "equilibrium with incomplete_ionisation=True (the default), so sigma_dark is low by the "
-    "un-ionised fraction: -0.2 % at 1 ohm cm n, -1.1 % at 1 ohm cm p, -13 % at 0.1 ohm cm p (300 K)"))
 @pytest.mark.parametrize("rho,kind", [(1.0, "n"), (1.0, "p"), (0.1, "p")])
 def test_dark_conductivity_round_trips_resistivity_default_settings(rho, kind):
     d = run_dict(RHO.format(rho=rho, kind=kind, extra=""))
@@ -293,10 +288,6 @@ def test_bad_detector_input_names_the_field(key, value):
     assert err.value.field == key
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "runner.build passes [background] to light.blackbody, whose check_range names "
-    "light.field_of_view_deg (and light.temperature_K, light.emissivity): the error points the "
-    "user at [light] although the bad value is in [background]"))
 @pytest.mark.parametrize("value", [0.0, 95.0])
 def test_bad_background_field_of_view_names_the_background_field(value):
     sc = optogen.load_scenario(BAR + BACKGROUND).with_values({"background.field_of_view_deg": value})
@@ -312,11 +303,6 @@ def test_bad_background_field_of_view_is_rejected(value):
         optogen.run(sc)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "cli._dispatch 'check' only calls runner.build, which never builds the [detector] record "
-    "(detector.detector_from_table is called only in runner._detector_block during a run), so "
-    "`optogen check` prints ok (exit 0) for electrode_spacing_um = 0, a negative photoconductor "
-    "bias or an unknown mode, which `optogen run` then rejects with exit 2"))
 @pytest.mark.parametrize("old,new", [
     ("electrode_spacing_um = 1000", "electrode_spacing_um = 0"),
     ("bias_V = 5", "bias_V = -5"),
@@ -341,11 +327,6 @@ def test_photodiode_quantity_in_photoconductor_mode_is_a_clear_error():
     assert not {"j0_thick_base_mA_cm2", "j0_thin_base_mA_cm2", "dark_current_density_mA_cm2"} & set(block)
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "detector.Detector accepts junction_side_doping_cm3 in photoconductor mode and the runner "
-    "ignores it silently; [light] rejects a key of another source ('only used with "
-    "light.source = ...'), so a photodiode-only [detector] key in photoconductor mode should "
-    "likewise be an InputError naming detector.junction_side_doping_cm3"))
 def test_photodiode_only_setting_in_photoconductor_mode_is_rejected():
     sc = optogen.load_scenario(BAR).with_values({"detector.junction_side_doping_cm3": 1e18})
     with pytest.raises(InputError, match="detector.junction_side_doping_cm3"):
@@ -361,7 +342,6 @@ LEVEL_AT_EI = (
     "PreparedRates raises 'recombination.defects[0].energy_eV = None is not allowed'")
 
 
-@pytest.mark.xfail(strict=True, reason=LEVEL_AT_EI + " (HgCdTe x = 0.2 at 300 K: E_i - Ev = 0.148 > Eg 0.145 eV)")
 def test_narrow_gap_lifetime_only_defect_at_300_K():
     text = NARROW.format(material="HgCdTe", composition="composition_x = 0.2", wavelength_nm=5000,
                          mode="photoconductor", bias=0.1, defects=MIDGAP_DEFECT).split("[sweep]")[0]
@@ -371,8 +351,6 @@ def test_narrow_gap_lifetime_only_defect_at_300_K():
     assert d["steady_state"]["tau_s"]["srh"] >= 1e-6 * (1 - 1e-9)
 
 
-@pytest.mark.xfail(strict=True, reason=LEVEL_AT_EI + "; runner.background_limit scans a fixed 20-400 K "
-                   "range, so a 20-300 K InSb sweep fails at the scan's own temperatures near 400 K (Eg 0.145, E_i - Ev 0.158 eV)")
 def test_insb_lifetime_only_defect_with_background_20_to_300_K():
     text = NARROW.format(material="InSb", composition="", wavelength_nm=3000, mode="photoconductor",
                          bias=0.1, defects=MIDGAP_DEFECT)

@@ -90,7 +90,6 @@ HOT_BLACKBODY = ("light.blackbody_grid_nm starts at hc/(50 kT) (192 nm at 1500 K
                  "the user never set")
 
 
-@pytest.mark.xfail(strict=True, raises=InputError, reason=HOT_BLACKBODY)
 @pytest.mark.parametrize("where", ["light", "background"])
 def test_hot_blackbody_on_silicon(where):
     thick = WAFER.replace("thickness_um = 160", "thickness_um = 300")
@@ -123,11 +122,6 @@ def test_zero_suns_in_a_sweep_is_the_dark_state():
     assert ds["splitting_eV"].sel(dark).item() == pytest.approx(0.0, abs=1e-12)  # analytic: kT ln 1
 
 
-@pytest.mark.xfail(strict=True, raises=TypeError, reason=(
-    "single point with light.suns = 0: generation.to_dict() gives absorbed_fraction [None] for a dark "
-    "spectrum, runner._block keeps it as an object array and runner.evaluate multiplies it by 1.0 -> "
-    "TypeError; the CLI does not catch TypeError, so `optogen run S.toml --set light.suns=0` prints a "
-    "traceback (the sweep path builds the spectrum at unit scaling and is not affected)"))
 def test_zero_suns_single_point_is_the_dark_state():
     d = run_dict(WAFER.replace("suns = 1.0", "suns = 0.0"))
     ss = d["steady_state"]

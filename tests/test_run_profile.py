@@ -108,9 +108,6 @@ def test_bad_plane_names_the_field():
     assert err.value.field == "solver.voc_plane"
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "cli._dispatch 'check' calls only runner.build; solver.voc_plane is checked in "
-    "runner._depth_resolved during a run, so `optogen check` prints ok for voc_plane = \"middle\""))
 def test_check_rejects_a_bad_plane(tmp_path):
     p = tmp_path / "bad_plane.toml"
     p.write_text(VIOLET + 'voc_plane = "middle"\n')
@@ -119,7 +116,7 @@ def test_check_rejects_a_bad_plane(tmp_path):
 
 @pytest.mark.parametrize("light", [
     LASER_1000, LASER_700,
-    pytest.param(SUN, marks=pytest.mark.xfail(strict=True, reason=BROADBAND_MESH)),
+    SUN,
 ], ids=["laser-1000nm", "laser-700nm", "AM1.5G"])
 def test_profile_carries_the_generation_of_the_generation_layer(light):
     d = run_dict(THIN.format(light=light))
@@ -131,7 +128,7 @@ def test_profile_carries_the_generation_of_the_generation_layer(light):
 
 @pytest.mark.parametrize("light", [
     LASER_1000, LASER_700,
-    pytest.param(SUN, marks=pytest.mark.xfail(strict=True, reason=BROADBAND_MESH)),
+    SUN,
 ], ids=["laser-1000nm", "laser-700nm", "AM1.5G"])
 def test_thin_wafer_profile_average_equals_uniform(light):
     text = THIN.format(light=light)

@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 import warnings
 from pathlib import Path
@@ -72,6 +73,9 @@ def main(argv=None) -> int:
         return int(exc.code or 0)
     try:
         return _dispatch(args)
+    except BrokenPipeError:            # output piped into `head` and closed: not an error
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
     except InputError as exc:
         print(f"optogen: error: {exc}", file=sys.stderr)
         return EXIT_INPUT

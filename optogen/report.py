@@ -139,7 +139,7 @@ def summary(res) -> str:
 
 def _absorber_line(sc, d) -> str:
     ab = sc.data["absorber"]
-    parts = [str(ab.get("material", "custom"))]
+    parts = [str(ab.get("material") or (ab.get("custom") or {}).get("name", "custom material"))]
     if "thickness_um" in ab:
         parts.append(f"{ab['thickness_um']:g} um")
     parts.append(f"{ab.get('temperature_K', 300.0):g} K")

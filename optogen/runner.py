@@ -599,10 +599,11 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
                 bar.update(math.ceil(n_fast / chunk))
     finally:
         bar.close()
-        if client is not None and workers and not scheduler:
-            cluster = client.cluster
+        if client is not None:
+            cluster = client.cluster if not scheduler else None
             client.close()
-            cluster.close()
+            if cluster is not None:
+                cluster.close()
     if "steady_state" in merged and "converged" in merged["steady_state"]:
         bad = int(np.sum(merged["steady_state"]["converged"] == 0))
         if bad:

@@ -74,9 +74,12 @@ class Scenario:
         """The value at a dotted key such as "light.suns", or `default`."""
         node: Any = self.data
         for part in dotted.split("."):
-            if not isinstance(node, Mapping) or part not in node:
+            if isinstance(node, list) and part.isdigit() and int(part) < len(node):
+                node = node[int(part)]
+            elif isinstance(node, Mapping) and part in node:
+                node = node[part]
+            else:
                 return default
-            node = node[part]
         return node
 
     def section(self, name: str) -> dict:
@@ -136,10 +139,17 @@ def _set_dotted(data: dict, key: str, value) -> None:
         raise InputError(key, value, "a key starting with one of " + ", ".join(sorted(SECTIONS)),
                          did_you_mean(parts[0], TOP_LEVEL))
     node = data
-    for part in parts[:-1]:
-        node = node.setdefault(part, {})
-        if not isinstance(node, dict):
+    for part in parts[:-1]:         # a list of tables is indexed by number: recombination.defects.0.density_cm3
+        if isinstance(node, list):
+            if not (part.isdigit() and int(part) < len(node)):
+                raise InputError(key, value, f"an index 0..{len(node) - 1} into that list of tables")
+            node = node[int(part)]
+        else:
+            node = node.setdefault(part, {})
+        if not isinstance(node, (dict, list)):
             raise InputError(key, value, f"a key inside a table, but {part!r} is not a table")
+    if isinstance(node, list):
+        raise InputError(key, value, "a key inside one table of the list, e.g. recombination.defects.0.density_cm3")
     node[parts[-1]] = value
 
 

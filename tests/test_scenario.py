@@ -98,3 +98,13 @@ def test_parse_value_toml_then_string():
                                       ("photocurrent_mA_cm2", "mA cm-2"), ("implied_voc_V", "V")])
 def test_unit_from_key_suffix(key, unit):
     assert unit_of(key) == unit
+
+
+def test_a_key_inside_a_list_of_tables_can_be_set_and_swept():
+    text = BASE + '[[recombination.defects]]\nname = "Fe_i"\ndensity_cm3 = 1e10\n'
+    sc = load_scenario(text).with_values({"recombination.defects.0.density_cm3": 1e12})
+    assert sc.get("recombination.defects.0.density_cm3") == 1e12
+    sw = load_scenario(text + '\n[sweep]\n"recombination.defects.0.density_cm3" = [1e10, 1e11]\n')
+    assert sw.n_points == 2
+    with pytest.raises(InputError, match="index"):
+        load_scenario(text).with_values({"recombination.defects.3.density_cm3": 1.0})

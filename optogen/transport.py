@@ -453,8 +453,8 @@ def photoconductance_S(delta_n_cm3, delta_p_cm3, mu_e_cm2_Vs, mu_h_cm2_Vs, thick
     """Sheet photoconductance Delta_sigma W = q (Delta_n mu_e + Delta_p mu_h) W [S].
 
     The mobilities should be those of the illuminated state (e.g. Klaassen 1992
-    with n, p under light), as in quasi-steady-state photoconductance practice
-    (R. A. Sinton and A. Cuevas, Appl. Phys. Lett. 69, 2510 (1996)).
+    with n, p under light); definition of the conductivity change, Sze & Ng (2007)
+    section 13.2 (common practice).
 
     delta_n_cm3, delta_p_cm3 [cm^-3]; mu_e_cm2_Vs, mu_h_cm2_Vs [cm^2 V^-1 s^-1];
     thickness_cm [cm].

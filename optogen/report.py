@@ -11,7 +11,6 @@ import json
 import os
 import tempfile
 from pathlib import Path
-from typing import Callable
 
 import numpy as np
 import xarray as xr
@@ -124,7 +123,7 @@ def summary(res) -> str:
     d = res.to_dict()
     sc = res.scenario
     lines = [f"optogen {d['version']}: {d['title']}"]
-    ab = sc.data["absorber"]
+    sc.data["absorber"]
     lines.append(_absorber_line(sc, d))
     if res.is_sweep:
         lines += _sweep_summary(res)

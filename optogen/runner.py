@@ -18,14 +18,14 @@ import datetime as _dt
 import itertools
 import math
 from dataclasses import dataclass, field
-from typing import Any, Callable, Mapping
+from typing import Any, Mapping
 
 import numpy as np
 import xarray as xr
 
 from . import __version__
 from .errors import InputError, check_range
-from .scenario import Scenario, SweepAxis, unit_of
+from .scenario import Scenario, unit_of
 
 LIGHT_SCALING_KEYS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
 FAST_KEYS = {"absorber.temperature_K", "absorber.donors_cm3", "absorber.acceptors_cm3",
@@ -100,8 +100,6 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
             for k in LIGHT_SCALING_KEYS:
                 table.pop(k, None)
             table[unit_scaling] = 1.0
-            if unit_scaling == "power_W" and not any(k in table for k in ("spot_area_cm2", "beam_diameter_mm")):
-                pass  # the light module reports the missing spot
         spectrum = light.source_from_table(table, sc.base_dir)
     background = None
     if "background" in sc.data:

@@ -24,7 +24,7 @@ from dataclasses import dataclass, fields
 
 import numpy as np
 
-from .constants import kT_eV, q_C
+from .constants import q_C
 from .errors import InputError, check_range
 from .recombination import MECHANISMS, PreparedRates, Recombination, _eq_shape
 

@@ -1,5 +1,4 @@
 """Every bundled demo scenario runs end to end and writes its files."""
-import json
 from pathlib import Path
 
 import pytest

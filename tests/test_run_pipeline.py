@@ -14,7 +14,6 @@ import optogen
 from optogen import scenario as scenario_module
 from optogen import steady_state
 from optogen.cli import main
-from optogen.errors import InputError
 from optogen.report import summary
 from optogen.scenario import unit_of
 

@@ -79,7 +79,7 @@ def test_files_netcdf_round_trip_and_tidy_csv(tmp_path):
     import pandas as pd
     sc = sweep(WAFER, '"light.suns" = [0.1, 1.0]\n"absorber.temperature_K" = [280, 300, 320]')
     res = optogen.run(sc)
-    paths = write_all(res, tmp_path)
+    write_all(res, tmp_path)
     back = xr.open_dataset(tmp_path / "result.nc")          # scipy engine: no extra dependency
     for name in ("implied_voc_V", "tau_eff_s", "np_over_ni2"):
         np.testing.assert_array_equal(back[name].values, res.dataset[name].values)

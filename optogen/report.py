@@ -123,7 +123,6 @@ def summary(res) -> str:
     d = res.to_dict()
     sc = res.scenario
     lines = [f"optogen {d['version']}: {d['title']}"]
-    sc.data["absorber"]
     lines.append(_absorber_line(sc, d))
     if res.is_sweep:
         lines += _sweep_summary(res)

@@ -95,8 +95,8 @@ def _dispatch(args) -> int:
     from .scenario import MAX_POINTS_WITHOUT_CONFIRMATION, load_scenario
     sc = load_scenario(Path(args.scenario), _overrides(args.set))
     if args.command == "check":
-        from .runner import build
-        build(sc)
+        from .runner import build, swept_light_scaling
+        build(sc, swept_light_scaling(sc))
         print(f"{args.scenario}: ok ({sc.n_points} point{'s' if sc.n_points != 1 else ''})")
         return 0
     if sc.n_points > MAX_POINTS_WITHOUT_CONFIRMATION and not args.yes:

@@ -82,9 +82,10 @@ class Detector:
             check_range("detector.bias_V", self.bias_V, 0.0, unit="V (a photoconductor takes a bias magnitude)")
         else:
             check_range("detector.bias_V", self.bias_V, unit="V")
-        if self.junction_side_doping_cm3 is not None and mode == "photoconductor":
-            raise InputError("detector.junction_side_doping_cm3", self.junction_side_doping_cm3,
-                             'only with mode = "photodiode"', "a photoconductor bar has no junction")
+        for key in ("junction_side_doping_cm3", "rear_S_cm_s"):
+            if getattr(self, key) is not None and mode == "photoconductor":
+                raise InputError(f"detector.{key}", getattr(self, key), 'only with mode = "photodiode"',
+                                 "a photoconductor bar has no junction (surfaces go in [recombination])")
         if self.junction_side_doping_cm3 is not None:
             check_range("detector.junction_side_doping_cm3", self.junction_side_doping_cm3, 0.0,
                         low_open=True, unit="cm^-3")

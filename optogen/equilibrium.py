@@ -485,10 +485,10 @@ def _species(material, name, kind):
         return name
     if name is None:
         return material.default_dopant(kind)
-    d = material.dopant(name)
+    d = material.dopant(name, field=f"absorber.{kind}_species")
     if d.kind != kind:
         names = [x.name for x in material.dopants if x.kind == kind]
-        raise InputError(f"absorber.{kind}", name, f"a {kind} species of {material.name}: "
+        raise InputError(f"absorber.{kind}_species", name, f"a {kind} species of {material.name}: "
                          + (", ".join(names) or "(none defined)"))
     return d
 

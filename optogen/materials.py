@@ -204,13 +204,13 @@ class Material:
         return fn(self, T)
 
     # -- dopants ----------------------------------------------------------
-    def dopant(self, name: str) -> Dopant:
+    def dopant(self, name: str, field: str = "absorber.dopant_species") -> Dopant:
         """The dopant species `name` (case-insensitive)."""
         for d in self.dopants:
             if d.name.lower() == str(name).lower():
                 return d
         names = [d.name for d in self.dopants]
-        raise InputError("absorber.dopant_species", name,
+        raise InputError(field, name,
                          f"a dopant of {self.name}: one of {', '.join(names) or '(none defined)'}",
                          did_you_mean(name, names))
 

@@ -218,7 +218,7 @@ _DEFECT_KEYS = ("name", "energy_eV", "energy_ref", "sigma_n_cm2", "sigma_p_cm2",
                 "tau_n0_s", "tau_p0_s", "source")
 
 
-def defect_from_table(table: Mapping, label: str = "recombination.defects[0]") -> Defect:
+def defect_from_table(table: Mapping, label: str = "recombination.defects.0") -> Defect:
     """A `Defect` from one ``[[recombination.defects]]`` table.
 
     Keys: name (a built-in of `DEFECTS`, or a free label), density_cm3, energy_eV,
@@ -489,7 +489,7 @@ class Recombination:
             check_range("recombination.J0_reference_K", self.J0_reference_K, 0.0, None, low_open=True, unit="K")
         for i, d in enumerate(self.defects):
             if not isinstance(d, Defect):
-                raise InputError(f"recombination.defects[{i}]", d, "a Defect")
+                raise InputError(f"recombination.defects.{i}", d, "a Defect")
 
     @classmethod
     def from_table(cls, table: Mapping | None) -> "Recombination":
@@ -505,7 +505,7 @@ class Recombination:
         kw = {k: table[k] for k in table}
         if "bandgap_narrowing" in kw:
             kw["bgn_model"] = kw.pop("bandgap_narrowing")
-        return cls(defects=tuple(defect_from_table(t, f"recombination.defects[{i}]") for i, t in enumerate(defects)),
+        return cls(defects=tuple(defect_from_table(t, f"recombination.defects.{i}") for i, t in enumerate(defects)),
                    **kw)
 
     def intrinsic_model(self, material) -> str:

@@ -90,20 +90,22 @@ CAUTION_COLD = ("Cryogenic temperature: liquid nitrogen and cold surfaces cause 
                 "boiling cryogen builds pressure and displaces oxygen; follow your site's cryogen rules.")
 
 
-def cautions(sc) -> list[str]:
-    """The safety notes that apply to a scenario."""
+#: above this incident irradiance (2 suns) the light caution is shown [W m^-2]
+CAUTION_IRRADIANCE_W_m2 = 2000.0
+
+
+def cautions(res) -> list[str]:
+    """The safety notes that apply to a result: always the estimate note; the light note for a
+    laser or LED source or any point above 2 suns of incident light (whatever sets the level);
+    the cryogenic note below 200 K."""
+    sc, ds = res.scenario, res.dataset
     out = [CAUTION_ESTIMATE]
-    light = sc.data.get("light", {}) or {}
-    src = str(light.get("source", "")).lower()
-    swept = {a.key: a.values for a in sc.sweep}
-    suns = np.max(swept.get("light.suns", light.get("suns", 0.0)))
-    irr = np.max(swept.get("light.irradiance_W_m2", light.get("irradiance_W_m2", 0.0)))
-    if src in ("laser", "led") or suns > 2 or irr > 2000:
+    src = str((sc.data.get("light") or {}).get("source", "")).lower()
+    irr = float(np.nanmax(ds["irradiance_W_m2"].values)) if "irradiance_W_m2" in ds else 0.0
+    if src in ("laser", "led") or irr > CAUTION_IRRADIANCE_W_m2:
         out.append(CAUTION_LIGHT)
-    temps = [np.min(swept.get("absorber.temperature_K", sc.get("absorber.temperature_K", 300.0)))]
-    if "background" in sc.data:
-        temps.append(300.0)
-    if min(temps) < 200:
+    swept = {a.key: a.values for a in sc.sweep}
+    if np.min(swept.get("absorber.temperature_K", sc.get("absorber.temperature_K", 300.0))) < 200:
         out.append(CAUTION_COLD)
     return out
 
@@ -131,7 +133,7 @@ def summary(res) -> str:
     for w in d.get("warnings", []):
         lines.append(f"WARNING: {w}")
     lines.append("")
-    lines += [f"Note: {c}" for c in cautions(sc)]
+    lines += [f"Note: {c}" for c in cautions(res)]
     return "\n".join(lines)
 
 

@@ -119,6 +119,14 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
     return Setup(sc, mat, float(thickness_um) * 1e-4, spectrum, background, recomb, sc.section("optics"))
 
 
+def swept_light_scaling(sc: Scenario) -> str | None:
+    """The [light] scaling key that is swept (suns, irradiance_W_m2, ...), or None."""
+    scaling = [a.key.split(".")[1] for a in sc.sweep if a.key in FAST_KEYS and a.key.startswith("light.")]
+    if len(scaling) > 1:
+        raise InputError("sweep", ", ".join(scaling), "at most one light scaling key swept at a time")
+    return scaling[0] if scaling else None
+
+
 def _validate_point_fields(sc: Scenario) -> None:
     """Checks that `optogen check` must make without running (values used later in the run)."""
     ab = sc.section("absorber")
@@ -132,6 +140,14 @@ def _validate_point_fields(sc: Scenario) -> None:
     plane = str(sc.get("solver.voc_plane", "front")).lower()
     if plane not in VOC_PLANES:
         raise InputError("solver.voc_plane", plane, "front or rear")
+    for key, low in (("solver.chunk_size", 1), ("solver.nodes", 3)):
+        v = sc.get(key)
+        if v is not None and (isinstance(v, bool) or not isinstance(v, int) or v < low):
+            raise InputError(key, v, f"an integer >= {low}")
+    for key in ("solver.depth_resolved", "absorber.incomplete_ionisation"):
+        v = sc.get(key)
+        if v is not None and not isinstance(v, bool):
+            raise InputError(key, v, "true or false")
     if "detector" in sc.data:
         from .detector import detector_from_table
         detector_from_table(sc.section("detector"))
@@ -409,6 +425,9 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
         block = det.photodiode_figures(d, setup.thickness_cm, T, np.ravel(eq.ni_eff_cm3), n0, p0,
                                        np.ravel(ss.n_cm3), np.ravel(ss.p_cm3), D_min, tau_dark, rear_S,
                                        gen.get("photocurrent_mA_cm2", np.zeros(n)), g_opt, g_bg, irr)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        block["noise_equivalent_power_W"] = det.noise_equivalent_power_W(
+            block["detectivity_cm_Hz05_W"], d.area_cm2, d.bandwidth_Hz)
     block["mode"] = np.full(n, d.mode, dtype=object)
     return {k: (np.broadcast_to(v, (n,)).copy() if np.ndim(v) == 0 or np.size(v) == 1 else np.ravel(v))
             for k, v in block.items()}
@@ -552,12 +571,11 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
         _background_limit_attrs(ds, setup)
         return Result(sc, ds, details, tuple(details.get("warnings", ())))
 
-    chunk = int(chunk_size or sc.get("solver.chunk_size", DEFAULT_CHUNK))
+    chunk = chunk_size if chunk_size is not None else sc.get("solver.chunk_size", DEFAULT_CHUNK)
+    if isinstance(chunk, bool) or not isinstance(chunk, int) or chunk < 1:
+        raise InputError("solver.chunk_size", chunk, "an integer >= 1")
     axes = list(sc.sweep)
-    scaling = [a.key.split(".")[1] for a in axes if a.key in FAST_KEYS and a.key.startswith("light.")]
-    if len(scaling) > 1:
-        raise InputError("sweep", ", ".join(scaling), "at most one light scaling key swept at a time")
-    unit_scaling = scaling[0] if scaling else None
+    unit_scaling = swept_light_scaling(sc)
     fast = [a for a in axes if a.key in FAST_KEYS]
     slow = [a for a in axes if a.key not in FAST_KEYS]
     fast_grid = np.meshgrid(*[a.values for a in fast], indexing="ij") if fast else []

@@ -252,7 +252,7 @@ def test_bad_inputs_name_the_field():
         (dict(temperature_K=float("nan")), "absorber.temperature_K"),
         (dict(temperature_K=300.0, donors_cm3=-1e15), "absorber.donors_cm3"),
         (dict(temperature_K=300.0, acceptors_cm3=[1e15, -1.0]), "absorber.acceptors_cm3"),
-        (dict(temperature_K=300.0, donors_cm3=1e15, donor="B"), "absorber.donor"),
+        (dict(temperature_K=300.0, donors_cm3=1e15, donor="B"), "absorber.donor_species"),  # the scenario key
         (dict(temperature_K=300.0, bgn_model="magic"), "recombination.bandgap_narrowing"),
         (dict(temperature_K=300.0, ni_model="magic"), "absorber.ni_model"),
     ]

@@ -207,13 +207,13 @@ def test_table_and_errors():
         Recombination.from_table({"front_J0_fA_cm2": 1, "front_S_cm_s": 1})
     with pytest.raises(InputError, match="did you mean 'front_J0_fA_cm2'"):
         Recombination.from_table({"front_J0_fA_cm": 1})
-    with pytest.raises(InputError, match=r"recombination\.defects\[0\]\.sigma_n_cm2"):
+    with pytest.raises(InputError, match=r"recombination\.defects\.0\.sigma_n_cm2"):
         Recombination.from_table({"defects": [{"energy_eV": 0.3, "sigma_n_cm2": -1e-15, "sigma_p_cm2": 1e-15,
                                                "density_cm3": 1e10}]})
-    with pytest.raises(InputError, match=r"recombination\.defects\[1\]\.tau_p0_s"):
+    with pytest.raises(InputError, match=r"recombination\.defects\.1\.tau_p0_s"):
         Recombination.from_table({"defects": [{"name": "FeB", "density_cm3": 1},
                                               {"tau_n0_s": 1e-3, "tau_p0_s": -1.0}]})
-    with pytest.raises(InputError, match=r"defects\[0\]\.density_cm3"):
+    with pytest.raises(InputError, match=r"defects\.0\.density_cm3"):
         Recombination.from_table({"defects": [{"name": "Fe_i", "density_cm3": -5.0}]})
     with pytest.raises(InputError, match="Fe_i"):
         Recombination.from_table({"defects": [{"name": "Fe_x"}]})
@@ -227,7 +227,7 @@ def test_level_outside_gap_and_model_material_mismatch():
     eq = equilibrium(SI, 300.0, 1e15, 0.0)
     rec = Recombination.from_table({"defects": [{"energy_eV": 1.3, "sigma_n_cm2": 1e-15, "sigma_p_cm2": 1e-15,
                                                  "density_cm3": 1e10}]})
-    with pytest.raises(InputError, match=r"defects\[0\]\.energy_eV.*inside the gap"):
+    with pytest.raises(InputError, match=r"defects\.0\.energy_eV.*inside the gap"):
         rec.rates(SI, eq, 1e14, W)
     other = SI.with_(name="NotSi")
     with pytest.raises(InputError, match="recombination.intrinsic"):

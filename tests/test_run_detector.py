@@ -335,13 +335,6 @@ def test_photodiode_only_setting_in_photoconductor_mode_is_rejected():
 
 MIDGAP_DEFECT = "[[recombination.defects]]\ntau_n0_s = 1e-6\ntau_p0_s = 1e-6\n"   # DESIGN.md: mid-gap if no energy
 
-LEVEL_AT_EI = (
-    "recombination.Defect.level_from_ev_eV puts a defect given only by tau_n0_s/tau_p0_s at the "
-    "intrinsic level E_i = Eg/2 + (3/4) kT ln(m_h/m_e) instead of mid-gap (DESIGN.md: 'mid-gap if "
-    "absent'); with the light electrons of HgCdTe and InSb E_i lies above the effective band edge at high T, and "
-    "PreparedRates raises 'recombination.defects[0].energy_eV = None is not allowed'")
-
-
 def test_narrow_gap_lifetime_only_defect_at_300_K():
     text = NARROW.format(material="HgCdTe", composition="composition_x = 0.2", wavelength_nm=5000,
                          mode="photoconductor", bias=0.1, defects=MIDGAP_DEFECT).split("[sweep]")[0]

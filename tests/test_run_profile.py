@@ -49,15 +49,6 @@ SUN = 'source = "AM1.5G"\nsuns = 1'
 PROFILE_KEYS = {"front_delta_n_cm3", "rear_delta_n_cm3", "average_delta_n_cm3", "uniformity",
                 "uniform_error_implied_voc_mV", "uniform_error_average_delta_n"}
 
-BROADBAND_MESH = (
-    "runner._depth_resolved builds the mesh from a single length, 1/alpha of the most strongly "
-    "absorbed wavelength carrying >= 1 % of the peak flux, so on the default 200 nodes the "
-    "log-linear quadrature of the broadband G(x) (profile.generation_per_volume_cm2_s) "
-    "over-counts: AM1.5G on 100 um Si integrates to 3.008e19 instead of the generation layer's "
-    "2.721e19 cm^-3 s^-1 (+10.5 %), so the profile average is 5.3 % above the uniform answer "
-    "(0.7 % at 1000 nodes, 0.07 % at 4000); no MeshRefinedWarning is raised")
-
-
 def run_dict(text):
     return optogen.run(optogen.load_scenario(text)).to_dict()
 

@@ -97,3 +97,31 @@ def test_spectra_lists_standard_spectra(capsys):
     assert main(["spectra"]) == 0
     out = capsys.readouterr().out.lower()
     assert "am1.5g" in out and "laser" in out and "blackbody" in out
+
+
+@pytest.mark.parametrize("setting, field", [("solver.chunk_size=0", "solver.chunk_size"),
+                                            ("solver.nodes=2", "solver.nodes"),
+                                            ("solver.depth_resolved=3", "solver.depth_resolved")])
+def test_check_rejects_bad_solver_settings(capsys, setting, field):
+    assert main(["check", str(SCEN / "rooftop_n_wafer.toml"), "--set", setting]) == 2
+    assert field in capsys.readouterr().err
+
+
+def test_light_caution_follows_the_computed_irradiance(capsys, tmp_path):
+    # a 3000 K full-hemisphere blackbody: sigma T^4 = 4.6e6 W/m2 (Stefan-Boltzmann, scipy), far above 2 suns
+    text = (SCEN / "rooftop_n_wafer.toml").read_text().replace(
+        'source = "AM1.5G"\nsuns = 1.0', 'source = "blackbody"\ntemperature_K = 3000')
+    path = tmp_path / "lamp.toml"
+    path.write_text(text)
+    assert main(["run", str(path)]) == 0
+    assert "Laser / concentrated light" in capsys.readouterr().out
+
+
+def test_nep_follows_from_detectivity_area_and_bandwidth(capsys):
+    d = run_json(capsys, SCEN / "cooled_hgcdte_pixel.toml", "--set", "absorber.temperature_K=77",
+                 "--set", "detector.bandwidth_Hz=100")
+    det = d["detector"]
+    area_cm2 = 50e-4 * 50e-4                        # electrode spacing x width of the demo pixel
+    # NEP = sqrt(A df) / D* (Rogalski 2011, ch. 3)
+    assert det["noise_equivalent_power_W"] == pytest.approx((area_cm2 * 100) ** 0.5 / det["detectivity_cm_Hz05_W"],
+                                                            rel=1e-12)

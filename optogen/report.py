@@ -224,6 +224,38 @@ def _sweep_summary(res) -> list[str]:
             out.append(f"  {name:<16} {np.nanmin(v):>12.4g} .. {np.nanmax(v):<12.4g}")
     if "background_limit_note" in ds.attrs:
         out.append(f"  background limit: {ds.attrs['background_limit_note']}")
+    if len(ds.dims) == 1 and ds.sizes[next(iter(ds.dims))] <= MAX_TABLE_ROWS:
+        out += _point_table(ds, ["n0_cm3", "n_cm3", "p0_cm3", "p_cm3", "np_over_ni2", "implied_voc_V",
+                                 "tau_eff_s"], "dark against illuminated")
+        if "thermal_generation_cm3_s" in ds:
+            out += _point_table(ds, ["minority_ratio", "thermal_generation_cm3_s", "optical_generation_cm3_s",
+                                     "background_generation_cm3_s", "background_limited", "responsivity_A_W",
+                                     "detectivity_cm_Hz05_W"], "detector")
+    return out
+
+
+#: a one-dimensional sweep up to this many points is also printed point by point
+MAX_TABLE_ROWS = 60
+
+_SHORT = {"n0_cm3": "n0", "n_cm3": "n", "p0_cm3": "p0", "p_cm3": "p", "np_over_ni2": "np/ni,eff^2",
+          "implied_voc_V": "iVoc (V)", "tau_eff_s": "tau_eff (s)", "minority_ratio": "minority x",
+          "thermal_generation_cm3_s": "G_thermal", "optical_generation_cm3_s": "G_light",
+          "background_generation_cm3_s": "G_backgr.", "background_limited": "bg-limited",
+          "responsivity_A_W": "R (A/W)", "detectivity_cm_Hz05_W": "D* (Jones)"}
+
+
+def _point_table(ds, names, title) -> list[str]:
+    """One row per point of a one-dimensional sweep (densities in cm-3, rates in cm-3 s-1)."""
+    dim = next(iter(ds.dims))
+    names = [n for n in names if n in ds]
+    if not names:
+        return []
+    head = [dim] + [_SHORT.get(n, n) for n in names]
+    rows = [[_f(float(ds[dim].values[i]))] + [_f(ds[n].values[i].item()) for n in names]
+            for i in range(ds.sizes[dim])]
+    w = [max(len(r[j]) for r in rows + [head]) for j in range(len(head))]
+    out = ["", f"  {title} (densities cm-3, rates cm-3 s-1):"]
+    out += ["  " + "  ".join(c.rjust(w[j]) for j, c in enumerate(r)) for r in [head] + rows]
     return out
 
 

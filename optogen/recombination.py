@@ -451,7 +451,8 @@ class Recombination:
         or neither (no surface recombination) [fA/cm^2] / [cm/s]
     J0_reference_K: temperature at which the J0 values are quoted; at another temperature
         J0 scales as n_i^2(T) / n_i^2(J0_reference_K), n_i^2 = Nc Nv exp(-Eg/kT) of the material
-        (a surface J0 is proportional to n_i^2; common practice).  None: J0 as given at every T [K]
+        (a surface J0 is proportional to n_i^2; common practice).  None (false in a scenario):
+        J0 as given at every T [K]
     photon_recycling: fraction f_PR of radiative events re-absorbed, in [0, 1) [-]
     B_rel: relative radiative coefficient applied to B (1: none, documented default;
         an injection/doping-dependent B_rel is not modelled) [-]
@@ -485,6 +486,8 @@ class Recombination:
                 check_range(f"recombination.{side}_S_cm_s", s, 0.0, None, unit="cm/s")
         check_range("recombination.photon_recycling", self.photon_recycling, 0.0, 1.0, high_open=True)
         check_range("recombination.B_rel", self.B_rel, 0.0, None)
+        if self.J0_reference_K is False:        # a scenario's `J0_reference_K = false`: J0 fixed at every T
+            object.__setattr__(self, "J0_reference_K", None)
         if self.J0_reference_K is not None:
             check_range("recombination.J0_reference_K", self.J0_reference_K, 0.0, None, low_open=True, unit="K")
         for i, d in enumerate(self.defects):

@@ -246,3 +246,12 @@ def test_j0_scales_with_ni2_away_from_reference():
     assert us[0] == pytest.approx(fixed[0], rel=1e-12)
     ni2 = SI.nc_cm3(T) * SI.nv_cm3(T) * np.exp(-SI.bandgap_eV(T) / kT_eV(T))
     assert us[1] / fixed[1] == pytest.approx(ni2[1] / ni2[0], rel=1e-12)
+
+
+def test_j0_temperature_scaling_can_be_switched_off():
+    # analytic: without the reference temperature, J0 is the value given at every temperature;
+    # with it, J0 scales as n_i^2(T)/n_i^2(298.15 K), which rises with T
+    fixed = Recombination.from_table({"front_J0_fA_cm2": 10.0, "J0_reference_K": False})
+    scaled = Recombination.from_table({"front_J0_fA_cm2": 10.0})
+    assert fixed.j0_at_fA_cm2(SI, 350.0, "front") == 10.0
+    assert scaled.j0_at_fA_cm2(SI, 350.0, "front") > 10.0 * 100      # n_i^2 rises > 100x from 298 to 350 K

@@ -34,6 +34,7 @@ import numpy as np
 
 from . import _dispatch
 from .constants import kT_eV, q_C
+from .equilibrium import bgn_eV, ni_nc_nv_eg
 from .errors import InputError, check_range, did_you_mean
 
 MECHANISMS = ("srh", "radiative", "auger", "surface")
@@ -552,7 +553,7 @@ class Recombination:
         j0 = getattr(self, f"{side}_J0_fA_cm2")
         if j0 is None or self.J0_reference_K is None:
             return j0
-        return j0 * np.exp(_ln_ni2(material, T_K) - _ln_ni2(material, self.J0_reference_K))
+        return j0 * _j0_scale(material, T_K, self.J0_reference_K)
 
     def rates(self, material, eq, delta_n_cm3, thickness_cm) -> dict:
         """Rates of every mechanism at excess density delta_n_cm3 [cm^-3 s^-1].
@@ -572,10 +573,9 @@ _EQ_FIELDS = ("temperature_K", "donors_cm3", "acceptors_cm3", "n0_cm3", "p0_cm3"
               "effective_gap_eV", "intrinsic_level_eV", "fermi_level_eV")
 
 
-def _ln_ni2(material, T_K):
-    """ln(Nc Nv exp(-Eg/kT)) of the material, no narrowing [ln cm^-6]."""
-    return (np.log(material.nc_cm3(T_K)) + np.log(material.nv_cm3(T_K))
-            - material.bandgap_eV(T_K) / kT_eV(T_K))
+def _j0_scale(material, T_K, reference_K):
+    """n_i^2(T) / n_i^2(reference) of the material, no narrowing [-] (a J0 is proportional to n_i^2)."""
+    return np.exp(2.0 * (ni_nc_nv_eg(material, T_K, log=True) - ni_nc_nv_eg(material, reference_K, log=True)))
 
 
 def _eq_shape(eq):
@@ -658,7 +658,7 @@ class PreparedRates:
         s = sum(_gather(v, shape, index) for v in (rec.front_S_cm_s, rec.rear_S_cm_s) if v is not None)
         self.s_j0 = np.zeros(P) + j0 * 1e-15 / (q_C * W)
         if rec.J0_reference_K is not None and np.any(self.s_j0):
-            self.s_j0 = self.s_j0 * np.exp(_ln_ni2(material, self.T) - _ln_ni2(material, rec.J0_reference_K))
+            self.s_j0 = self.s_j0 * _j0_scale(material, self.T, rec.J0_reference_K)
         self.s_s = np.zeros(P) + s / W
         if np.any((self.s_j0 > 0) & (n0 * p0 <= 0)):
             raise InputError("recombination.front_J0_fA_cm2" if rec.front_J0_fA_cm2 is not None
@@ -680,7 +680,6 @@ class PreparedRates:
 
     # -- helpers ---------------------------------------------------------
     def _bgn(self, n, p, sub=None):
-        from .equilibrium import bgn_eV
         T, nd, na = (self.T, self.nd, self.na) if sub is None else sub
         return np.asarray(bgn_eV(self.material, T, nd, na, n_cm3=n, p_cm3=p, model=self.bgn_model), dtype=float)
 

@@ -20,6 +20,7 @@ import numpy as np
 
 from ._dispatch import pick
 from .constants import kT_eV, q_C
+from .equilibrium import ni_nc_nv_eg
 from .errors import InputError, check_range
 
 __all__ = [
@@ -275,12 +276,6 @@ _ALIASES = {"klaassen": "klaassen1992", "masetti": "masetti1983", "ct": "caughey
             "caughey-thomas1967": "caughey_thomas", "caughey": "caughey_thomas"}
 
 
-def _ni_simple_cm3(material, T):
-    """n_i = sqrt(Nc Nv) exp(-Eg/2kT) [cm^-3] (no band-gap narrowing), in log form."""
-    log_ni = 0.5 * (np.log(material.nc_cm3(T)) + np.log(material.nv_cm3(T))) - material.bandgap_eV(T) / (2.0 * kT_eV(T))
-    return np.exp(log_ni)
-
-
 def carriers_full_ionisation(material, T_K, donors_cm3, acceptors_cm3):
     """Equilibrium (n0, p0) [cm^-3] with every dopant ionised.
 
@@ -294,7 +289,7 @@ def carriers_full_ionisation(material, T_K, donors_cm3, acceptors_cm3):
     T_K [K]; donors_cm3, acceptors_cm3 [cm^-3].  Returns (n0, p0) [cm^-3].
     """
     T, Nd, Na = np.broadcast_arrays(_arr(T_K), _arr(donors_cm3), _arr(acceptors_cm3))
-    ni = _ni_simple_cm3(material, T)
+    ni = ni_nc_nv_eg(material, T)
     half = 0.5 * np.abs(Nd - Na)
     major = half + np.hypot(half, ni)
     minor = ni * (ni / major)
@@ -393,7 +388,7 @@ def resistivity_to_doping(material, resistivity_ohm_cm, dopant_type, T_K=300.0, 
     T = check_range("absorber.temperature_K", T_K, 0.0, low_open=True, unit="K")
     rho, T = np.broadcast_arrays(_arr(rho), _arr(T))
     kind = str(dopant_type).strip().lower()
-    ni = _ni_simple_cm3(material, T)
+    ni = ni_nc_nv_eg(material, T)
     mu_e, mu_h = mobility_cm2_Vs(material, T, 0.0, 0.0, ni, ni, model)
     r = (mu_h / mu_e) if kind == "n" else (mu_e / mu_h)
     N_star = np.where(r > 1.0, ni * (np.sqrt(r) - 1.0 / np.sqrt(r)), 0.0)

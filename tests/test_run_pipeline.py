@@ -40,7 +40,7 @@ rear_S_cm_s = 10
 tau_n0_s = 1e-4
 tau_p0_s = 1e-4
 """
-# a warm scene; <= 1100 K so that its default wavelength grid stays inside Si's optical data
+# a warm scene (a furnace wall) for the [background] tests
 BACKGROUND = "[background]\ntemperature_K = 1000\nfield_of_view_deg = 60\nemissivity = 1.0\n"
 LIGHT_TABLE = '[light]\nsource = "AM1.5G"\nsuns = 1.0\n'
 DETECTOR = '[detector]\nmode = "photoconductor"\nelectrode_spacing_um = 500\nwidth_um = 500\nbias_V = 1\n'

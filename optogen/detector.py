@@ -1,5 +1,6 @@
 """Detector figures: photoconductor gain and currents, responsivity, photodiode
-dark current density, noise-limited detectivity and the background limit.
+dark current (diffusion and depletion region), R0A, the noise terms, D*, the
+background-limited D*_BLIP, NEP and the background-limit temperature.
 
 Pure numpy functions that broadcast over any shape; `Detector` only gathers
 the `[detector]` scenario settings.  Lengths [cm] in the core (the `Detector`
@@ -13,8 +14,9 @@ from dataclasses import dataclass, fields
 import numpy as np
 from scipy.optimize import brentq
 
-from .constants import h_J_s, c_m_s, hc_eV_nm, k_B_eV_K, q_C
+from .constants import c_m_s, eps0_F_cm, h_J_s, hc_eV_nm, k_B_eV_K, k_B_J_K, m0_kg, q_C
 from .transport import conductivity_S_cm
+from . import schema as _schema
 from .errors import InputError, check_range, did_you_mean
 
 __all__ = [
@@ -24,7 +26,12 @@ __all__ = [
     "noise_equivalent_power_W", "j0_thick_base_mA_cm2", "j0_base_mA_cm2", "thermal_generation_cm3_s",
     "detectivity_gr_cm_Hz05_W", "detectivity_shot_cm_Hz05_W", "field_of_view_factor",
     "background_limited", "BackgroundLimit", "background_limit_temperature_K",
-    "photoconductor_figures",
+    "shot_noise_A_Hz05", "gr_noise_photoconductor_A_Hz05", "johnson_noise_A_Hz05", "total_noise_A_Hz05",
+    "detectivity_from_noise_cm_Hz05_W", "detectivity_blip_photodiode_cm_Hz05_W",
+    "detectivity_blip_photoconductor_cm_Hz05_W", "detectivity_blip_cm_Hz05_W",
+    "built_in_potential_V", "depletion_width_cm", "depletion_current_sah_noyce_shockley_mA_cm2",
+    "r0a_ohm_cm2", "photodiode_thermal_noise_A_Hz05", "tunnelling_moll1964_mA_cm2", "spectral_response",
+    "JUNCTION_SIDE_DOPING_DEFAULT_cm3", "photoconductor_figures", "photodiode_figures",
 ]
 
 MODES = ("photoconductor", "photodiode")
@@ -61,6 +68,9 @@ class Detector:
     bandwidth_Hz: noise bandwidth for noise currents and NEP [Hz]
     rear_S_cm_s: back-surface recombination velocity of the base for the
         thin-base J0 (None: take it from [recombination]) [cm/s]
+    generation_lifetime_s: generation lifetime tau_g in the depletion region
+        for the Sah-Noyce-Shockley current (photodiode; None: the base's dark
+        low-injection lifetime) [s]
     """
 
     mode: str = "photoconductor"
@@ -70,6 +80,7 @@ class Detector:
     junction_side_doping_cm3: float | None = None
     bandwidth_Hz: float = 1.0
     rear_S_cm_s: float | None = None
+    generation_lifetime_s: float | None = None
 
     def __post_init__(self):
         mode = str(self.mode).strip().lower()
@@ -82,7 +93,7 @@ class Detector:
             check_range("detector.bias_V", self.bias_V, 0.0, unit="V (a photoconductor takes a bias magnitude)")
         else:
             check_range("detector.bias_V", self.bias_V, unit="V")
-        for key in ("junction_side_doping_cm3", "rear_S_cm_s"):
+        for key in ("junction_side_doping_cm3", "rear_S_cm_s", "generation_lifetime_s"):
             if getattr(self, key) is not None and mode == "photoconductor":
                 raise InputError(f"detector.{key}", getattr(self, key), 'only with mode = "photodiode"',
                                  "a photoconductor bar has no junction (surfaces go in [recombination])")
@@ -92,6 +103,8 @@ class Detector:
         check_range("detector.bandwidth_Hz", self.bandwidth_Hz, 0.0, low_open=True, unit="Hz")
         if self.rear_S_cm_s is not None:
             check_range("detector.rear_S_cm_s", self.rear_S_cm_s, 0.0, np.inf, unit="cm/s")
+        if self.generation_lifetime_s is not None:
+            check_range("detector.generation_lifetime_s", self.generation_lifetime_s, 0.0, low_open=True, unit="s")
 
     @property
     def electrode_spacing_cm(self):
@@ -109,7 +122,7 @@ class Detector:
         return self.electrode_spacing_cm * self.width_cm
 
 
-_DETECTOR_KEYS = tuple(f.name for f in fields(Detector))
+_DETECTOR_KEYS = _schema.section_keys("detector")       # declared once in optogen.schema (= Detector fields)
 
 
 def detector_from_table(table: dict) -> Detector:
@@ -335,12 +348,244 @@ def field_of_view_factor(field_of_view_deg):
     return np.sin(np.radians(_arr(th))) ** 2
 
 
-def background_limited(thermal_generation_cm3_s, background_generation_cm3_s):
-    """True where background (optical) generation exceeds thermal generation [bool].
+def background_limited(other_noise, background_noise):
+    """True where the background photon noise exceeds all other noise together [bool].
 
-    thermal_generation_cm3_s, background_generation_cm3_s [cm^-3 s^-1].
+    Pass noise powers (A^2/Hz) or noise currents (A/Hz^1/2) of the same kind:
+    background > rest.  With noise currents, rest = sqrt(total^2 - background^2),
+    so the test is background^2 > total^2 / 2, i.e. D*/D*_BLIP > 1/sqrt(2).
+    For a photoconductor limited by g-r noise the powers are proportional to the
+    generation rates, so generation rates (thermal, background) may be passed too.
     """
-    return _arr(background_generation_cm3_s) > _arr(thermal_generation_cm3_s)
+    return _arr(background_noise) > _arr(other_noise)
+
+
+# ---------------------------------------------------------------------------
+# Noise terms (one-sided spectral densities; every result in A/Hz^1/2)
+# ---------------------------------------------------------------------------
+
+def shot_noise_A_Hz05(current_A):
+    """Shot noise of a current of independent carriers i_n = sqrt(2 q |I|) [A/Hz^1/2].
+
+    W. Schottky, Ann. Phys. 362, 541 (1918); A. Rogalski, Infrared Detectors,
+    2nd ed., CRC 2011, ch. 3 (from memory).  current_A [A].
+    """
+    return np.sqrt(2.0 * q_C * np.abs(_arr(current_A)))
+
+
+def gr_noise_photoconductor_A_Hz05(generation_cm3_s, volume_cm3, gain):
+    """Generation-recombination noise of a photoconductor i_n = sqrt(4 q^2 g^2 G V) [A/Hz^1/2].
+
+    i_n^2 = 2 q^2 g^2 (G + R) V with R = G in steady state (generation and
+    recombination both fluctuate: the factor 2 against a photodiode's
+    2 q^2 G V), low frequency (omega tau << 1).  For G V = eta Phi A (photons)
+    this is 4 q g I with I = q g eta Phi A (Rogalski 2011, ch. 3 and 9;
+    K. M. van Vliet, Proc. IRE 46, 1004 (1958); from memory).
+
+    generation_cm3_s: generation rate G [cm^-3 s^-1]; volume_cm3: bar volume
+    L w t [cm^3]; gain: photoconductive gain g [-].
+    """
+    return np.sqrt(4.0 * q_C**2 * _arr(gain)**2 * np.maximum(_arr(generation_cm3_s), 0.0) * _arr(volume_cm3))
+
+
+def johnson_noise_A_Hz05(conductance_S, T_K):
+    """Johnson-Nyquist noise of a resistance i_n = sqrt(4 k T / R) [A/Hz^1/2].
+
+    J. B. Johnson, Phys. Rev. 32, 97 (1928); H. Nyquist, Phys. Rev. 32, 110 (1928).
+    conductance_S: 1/R [S]; T_K: temperature of the resistance [K].
+    """
+    return np.sqrt(4.0 * k_B_J_K * _arr(T_K) * np.maximum(_arr(conductance_S), 0.0))
+
+
+def total_noise_A_Hz05(*terms):
+    """Root sum of squares of independent noise currents [A/Hz^1/2]."""
+    return np.sqrt(sum(_arr(t)**2 for t in terms))
+
+
+def detectivity_from_noise_cm_Hz05_W(responsivity_A_W, noise_A_Hz05, area_cm2):
+    """Specific detectivity D* = R sqrt(A) / i_n [cm Hz^1/2 W^-1] (per unit bandwidth).
+
+    Equivalent to sqrt(A df) / NEP with NEP = i_n sqrt(df) / R (R. C. Jones,
+    Proc. IRE 47, 1495 (1959); Rogalski 2011, ch. 3).
+    responsivity_A_W [A/W]; noise_A_Hz05: total noise current [A/Hz^1/2];
+    area_cm2: optical area [cm^2].
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return _arr(responsivity_A_W) * np.sqrt(_arr(area_cm2)) / _arr(noise_A_Hz05)
+
+
+def detectivity_blip_photodiode_cm_Hz05_W(wavelength_nm, quantum_efficiency, background_flux_cm2_s):
+    """Background-limited D* of a photodiode, D*_BLIP = (lambda / hc) sqrt(eta / (2 Q_B)) [cm Hz^1/2 W^-1].
+
+    Shot noise of the background photocurrent only, 2 q^2 eta Q_B A
+    (Rogalski 2011, ch. 3, eq. for photovoltaic BLIP; from memory).
+    wavelength_nm [nm]; quantum_efficiency eta [-]; background_flux_cm2_s:
+    incident background photon flux Q_B [cm^-2 s^-1].
+    """
+    lam_cm = _arr(wavelength_nm) * 1e-7
+    with np.errstate(divide="ignore"):
+        return lam_cm / (h_J_s * c_m_s * 100.0) * np.sqrt(_arr(quantum_efficiency) / (2.0 * _arr(background_flux_cm2_s)))
+
+
+def detectivity_blip_photoconductor_cm_Hz05_W(wavelength_nm, quantum_efficiency, background_flux_cm2_s):
+    """Background-limited D* of a photoconductor, (lambda / 2hc) sqrt(eta / Q_B) [cm Hz^1/2 W^-1].
+
+    g-r noise of the background generation, 4 q^2 g^2 eta Q_B A: sqrt(2)
+    below a photodiode (Rogalski 2011, ch. 3 and 9; from memory).
+    wavelength_nm [nm]; quantum_efficiency [-]; background_flux_cm2_s:
+    incident background photon flux Q_B [cm^-2 s^-1].
+    """
+    lam_cm = _arr(wavelength_nm) * 1e-7
+    with np.errstate(divide="ignore"):
+        return lam_cm / (2.0 * h_J_s * c_m_s * 100.0) * np.sqrt(_arr(quantum_efficiency) / _arr(background_flux_cm2_s))
+
+
+def detectivity_blip_cm_Hz05_W(responsivity_A_W, absorbed_background_flux_cm2_s, gain=1.0, photoconductor=False):
+    """D*_BLIP of a detector of known signal responsivity, for any signal spectrum [cm Hz^1/2 W^-1].
+
+    Photodiode: R / (q sqrt(2 Phi_B)); photoconductor: R / (2 q g sqrt(Phi_B)),
+    with Phi_B = integral eta(lambda) Q_B(lambda) dlambda the absorbed
+    background photon flux.  For a line signal (R = eta g q lambda / hc) and a
+    QE flat over the background band (Phi_B = eta Q_B) these are the textbook
+    forms `detectivity_blip_photodiode_cm_Hz05_W` and
+    `detectivity_blip_photoconductor_cm_Hz05_W`; for a broadband signal R is the
+    signal current over the signal power.  Infinite (null in files) without a background.
+
+    responsivity_A_W [A/W]; absorbed_background_flux_cm2_s [cm^-2 s^-1];
+    gain [-] (photoconductor; 1 for a photodiode); photoconductor [-].
+    """
+    phi = _arr(absorbed_background_flux_cm2_s)
+    denom = 2.0 * q_C * _arr(gain) * np.sqrt(phi) if photoconductor else q_C * np.sqrt(2.0 * phi)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(denom > 0, _arr(responsivity_A_W) / np.where(denom > 0, denom, 1.0), np.inf)
+
+
+# ---------------------------------------------------------------------------
+# Photodiode junction: depletion region, Sah-Noyce-Shockley current, R0A, tunnelling
+# ---------------------------------------------------------------------------
+
+def built_in_potential_V(T_K, acceptors_cm3, donors_cm3, ni_cm3, bandgap_eV):
+    """Built-in potential of an abrupt p-n junction V_bi = (kT/q) ln(N_A N_D / n_i^2) [V].
+
+    Sze & Ng 2007, eq. 2.10 (from memory); non-degenerate statistics, so the
+    result is capped at Eg/q (a heavily doped side is degenerate; the junction
+    cannot build up more than the gap) and floored at 0.
+    T_K [K]; acceptors_cm3, donors_cm3: dopings of the two sides [cm^-3];
+    ni_cm3 [cm^-3]; bandgap_eV [eV].
+    """
+    kT = k_B_eV_K * _arr(T_K)
+    v = kT * (np.log(_arr(acceptors_cm3)) + np.log(_arr(donors_cm3)) - 2.0 * np.log(_arr(ni_cm3)))
+    return np.clip(v, 0.0, _arr(bandgap_eV))
+
+
+def depletion_width_cm(permittivity, built_in_V, bias_V, acceptors_cm3, donors_cm3):
+    """Depletion width of an abrupt junction W = sqrt(2 eps (V_bi - V) (N_A + N_D) / (q N_A N_D)) [cm].
+
+    Sze & Ng 2007, eq. 2.24 (from memory); zero where V >= V_bi.
+    permittivity: relative permittivity [-]; built_in_V [V]; bias_V: applied
+    bias, negative = reverse [V]; acceptors_cm3, donors_cm3 [cm^-3].
+    """
+    Na, Nd = _arr(acceptors_cm3), _arr(donors_cm3)
+    dv = np.maximum(_arr(built_in_V) - _arr(bias_V), 0.0)
+    return np.sqrt(2.0 * _arr(permittivity) * eps0_F_cm * dv * (1.0 / Na + 1.0 / Nd) / q_C)
+
+
+def depletion_current_sah_noyce_shockley_mA_cm2(ni_cm3, depletion_width_cm, generation_lifetime_s, bias_V, T_K):
+    """Depletion-region generation-recombination current density [mA/cm^2] (signed: reverse < 0).
+
+    J_gr = (q n_i W_dep / tau_g) (exp(qV / 2kT) - 1)
+    Reverse bias: the generation current q n_i W / tau_g of SRH centres in the
+    depleted region (tau_g = tau_n0 + tau_p0 for a mid-gap level); forward
+    bias: the recombination current with ideality 2.  This is the common
+    simplified form of C. T. Sah, R. N. Noyce and W. Shockley, Proc. IRE 45,
+    1228 (1957) (Sze & Ng 2007, sec. 2.4.3, eqs. for generation and
+    recombination currents; from memory): it drops the factor
+    pi kT / (q (V_bi - V)) of the forward-bias integral, so it is an upper
+    bound there.  It scales with n_i, i.e. as exp(-Eg / 2kT), against n_i^2
+    ~ exp(-Eg / kT) for diffusion.
+
+    ni_cm3 [cm^-3]; depletion_width_cm [cm]; generation_lifetime_s [s];
+    bias_V: applied bias [V]; T_K [K].
+    """
+    j_sat = 1e3 * q_C * _arr(ni_cm3) * _arr(depletion_width_cm) / _arr(generation_lifetime_s)
+    return j_sat * np.expm1(_arr(bias_V) / (2.0 * k_B_eV_K * _arr(T_K)))
+
+
+def r0a_ohm_cm2(T_K, j0_diffusion_mA_cm2, j_gr_saturation_mA_cm2):
+    """Zero-bias resistance-area product R0A = (dJ/dV at V = 0)^-1 [ohm cm^2].
+
+    dJ/dV = q J0 / kT (diffusion, J0 (e^{qV/kT} - 1)) + q J_gr0 / (2 kT)
+    (depletion current J_gr0 (e^{qV/2kT} - 1), width at zero bias)
+    (Rogalski 2011, ch. 12, from memory).
+    T_K [K]; j0_diffusion_mA_cm2: diffusion J0 [mA/cm^2]; j_gr_saturation_mA_cm2:
+    q n_i W(0) / tau_g [mA/cm^2].
+    """
+    kT = k_B_eV_K * _arr(T_K)
+    g = 1e-3 * (_arr(j0_diffusion_mA_cm2) / kT + _arr(j_gr_saturation_mA_cm2) / (2.0 * kT))
+    with np.errstate(divide="ignore"):
+        return 1.0 / g
+
+
+def photodiode_thermal_noise_A_Hz05(T_K, bias_V, j0_diffusion_mA_cm2, j_gr_saturation_mA_cm2, area_cm2):
+    """Dark-current noise of a photodiode, as (shot noise of the net dark current, Johnson term) [A/Hz^1/2].
+
+    Diffusion current J0 (e^x - 1), x = qV/kT: its forward and reverse fluxes
+    are independent, 2 q J0 (e^x + 1) (A. van der Ziel, Fluctuation Phenomena in
+    Semi-conductors, 1959; Rogalski 2011 ch. 3; from memory).  Written as
+    2 q |J| + 4 q J0 e^min(x, 0): the second part is 4 kT / R_d of the
+    diffusion current's differential resistance R_d for V <= 0 (R0 at zero bias).
+    Depletion current J_gr0 (e^{x/2} - 1): 2 q |J_gr| + 2 q J_gr0 e^{min(x,0)/2},
+    whose second part is again 4 kT / R_d for V <= 0 (dW/dV neglected); at
+    zero bias the total is 4 kT / R0 (Nyquist, thermal equilibrium) and under
+    strong reverse bias the full shot noise 2 q J_gr0 of the generation current.
+
+    T_K [K]; bias_V [V]; j0_diffusion_mA_cm2 [mA/cm^2]; j_gr_saturation_mA_cm2:
+    q n_i W(V) / tau_g [mA/cm^2]; area_cm2 [cm^2].
+    Returns (shot, johnson) [A/Hz^1/2].
+    """
+    x = _arr(bias_V) / (k_B_eV_K * _arr(T_K))
+    j0, jg = 1e-3 * _arr(j0_diffusion_mA_cm2), 1e-3 * _arr(j_gr_saturation_mA_cm2)
+    j_dark = j0 * np.expm1(x) + jg * np.expm1(x / 2.0)
+    xm = np.minimum(x, 0.0)
+    A = _arr(area_cm2)
+    shot = np.sqrt(2.0 * q_C * np.abs(j_dark) * A)
+    johnson = np.sqrt((4.0 * q_C * j0 * np.exp(xm) + 2.0 * q_C * jg * np.exp(xm / 2.0)) * A)
+    return shot, johnson
+
+
+def tunnelling_moll1964_mA_cm2(bandgap_eV, electron_mass_m0, max_field_V_cm, voltage_V):
+    """Band-to-band tunnelling current density through a junction, order of magnitude [mA/cm^2].
+
+    J_t = q^3 F V sqrt(2 m*) / (4 pi^2 hbar^2 sqrt(Eg)) exp(-4 sqrt(2 m*) Eg^{3/2} / (3 q hbar F))
+    (J. L. Moll, Physics of Semiconductors, McGraw-Hill 1964; Sze & Ng 2007,
+    sec. 2.4.4; from memory), uniform field F (here the peak field of the
+    junction), two-band direct gap.  Used only to flag junctions where
+    tunnelling would dominate; it is not added to the dark current.
+    bandgap_eV [eV]; electron_mass_m0: conduction-band mass [m0];
+    max_field_V_cm: peak junction field [V/cm]; voltage_V: voltage across the
+    junction (reverse bias magnitude plus kT/q) [V].
+    """
+    hbar = h_J_s / (2.0 * np.pi)
+    m = _arr(electron_mass_m0) * m0_kg
+    Eg = _arr(bandgap_eV) * q_C
+    F = np.maximum(_arr(max_field_V_cm) * 100.0, 1.0)                    # [V/m]; below 1 V/m: exp(-huge) = 0
+    pre = q_C**3 * F * _arr(voltage_V) * np.sqrt(2.0 * m) / (4.0 * np.pi**2 * hbar**2 * np.sqrt(Eg))
+    expo = -4.0 * np.sqrt(2.0 * m) * Eg**1.5 / (3.0 * q_C * hbar * F)
+    return pre * np.exp(np.maximum(expo, -745.0)) * 0.1                # A/m^2 -> mA/cm^2
+
+
+def spectral_response(wavelength_nm, absorptance, gain=1.0):
+    """Quantum efficiency and responsivity against wavelength, as a dict of arrays.
+
+    eta(lambda) = absorptance (front reflection and the light path included;
+    every absorbed photon counted: for a photodiode, full collection);
+    R(lambda) = eta g q lambda / (h c) (`responsivity_A_W`).
+    wavelength_nm (L,) [nm]; absorptance (L,) [-]; gain [-].
+    """
+    wl = _arr(wavelength_nm)
+    eta = np.clip(_arr(absorptance), 0.0, 1.0)
+    return {"wavelength_nm": wl, "quantum_efficiency": eta,
+            "responsivity_A_W": responsivity_A_W(wl, eta, gain)}
 
 
 @dataclass(frozen=True)
@@ -366,11 +611,10 @@ _LOG_CLIP = 1e3
 
 
 def _log_ratio(fn, T):
+    """ln(other noise / background noise) at temperatures T, clipped; NaN where either is not a number."""
     g_th, g_bg = fn(T)
     with np.errstate(divide="ignore", invalid="ignore"):
         d = np.log(_arr(g_th)) - np.log(_arr(g_bg))
-    if np.any(np.isnan(d)):
-        raise InputError("background", "nan", "finite, non-negative thermal and background generation rates")
     return np.clip(d, -_LOG_CLIP, _LOG_CLIP)
 
 
@@ -378,12 +622,16 @@ def background_limit_temperature_K(fn, T_low_K, T_high_K, points=256, xtol_K=1e-
     """Temperature at which thermal generation equals background generation [K].
 
     fn(T) takes an array of temperatures [K] and returns (thermal, background)
-    generation rates [cm^-3 s^-1] of the same shape.  d(T) = ln G_th - ln G_bg
+    generation rates [cm^-3 s^-1] (or any pair of positive figures whose ratio
+    crosses 1 at the limit) of the same shape.  d(T) = ln G_th - ln G_bg
     is scanned on `points` temperatures in one vectorised call; the highest
-    sign change (the temperature a cooled pixel reaches first on the way
-    down) is refined with Brent's method (scipy.optimize.brentq).  Without a
-    sign change the result has found=False, temperature nan and a note saying
-    whether the pixel is background-limited over the whole range or nowhere.
+    sign change between two neighbouring scan points where d is a number (the
+    temperature a cooled pixel reaches first on the way down) is refined with
+    Brent's method (scipy.optimize.brentq).  Without a sign change the result
+    has found=False, temperature nan and a note saying whether the pixel is
+    background-limited over the whole range, nowhere, or could not be
+    evaluated (scan points where the pipeline has no number, e.g. flagged
+    unconverged, are skipped and counted in the note).
 
     T_low_K, T_high_K: scan range, 0 < T_low < T_high [K]; points: scan
     resolution [-]; xtol_K: root tolerance [K].
@@ -392,46 +640,84 @@ def background_limit_temperature_K(fn, T_low_K, T_high_K, points=256, xtol_K=1e-
     hi = check_range("background_limit.T_high_K", T_high_K, lo, low_open=True, unit="K (and > T_low_K)")
     T = np.linspace(lo, hi, int(points))
     d = _log_ratio(fn, T)
+    ok = np.flatnonzero(~np.isnan(d))
+    skipped = "" if ok.size == T.size else f"; {T.size - ok.size} of {T.size} scan temperatures had no value"
+    if ok.size == 0:
+        return BackgroundLimit(float("nan"), False,
+                               f"could not be evaluated between {lo:g} K and {hi:g} K{skipped}")
+    T, d = T[ok], d[ok]
     thermal = d > 0.0
     change = np.flatnonzero(thermal[1:] != thermal[:-1])
     if change.size == 0:
         where = "thermally limited (never background-limited)" if thermal[0] else "background-limited throughout"
-        return BackgroundLimit(float("nan"), False, f"no crossing between {lo:g} K and {hi:g} K: {where}")
+        return BackgroundLimit(float("nan"), False, f"no crossing between {lo:g} K and {hi:g} K: {where}{skipped}")
     i = change[-1]
-    Tc = brentq(lambda t: float(_log_ratio(fn, np.array([t])).ravel()[0]), T[i], T[i + 1], xtol=xtol_K)
+
+    def f(t):
+        v = float(_log_ratio(fn, np.array([t])).ravel()[0])
+        return v if np.isfinite(v) else d[i] + (d[i + 1] - d[i]) * (t - T[i]) / (T[i + 1] - T[i])
+    Tc = brentq(f, T[i], T[i + 1], xtol=xtol_K)
     direction = "below" if thermal[i + 1] else "above"
     note = f"background-limited {direction} {Tc:.4g} K"
     if change.size > 1:
         note += f" ({change.size} crossings in {lo:g}-{hi:g} K; the highest is reported)"
-    return BackgroundLimit(float(Tc), True, note)
+    return BackgroundLimit(float(Tc), True, note + skipped)
 
 
 # ---------------------------------------------------------------------------
-# The photoconductor block
+# The detector blocks
 # ---------------------------------------------------------------------------
 
-def photoconductor_figures(detector, thickness_cm, n0_cm3, p0_cm3, n_cm3, p_cm3,
+#: default doping of the junction side of a photodiode when detector.junction_side_doping_cm3 is not given [cm^-3]
+JUNCTION_SIDE_DOPING_DEFAULT_cm3 = 1e18
+
+
+def _signal_figures(i_sig, i_bg, power_W, noise, area_cm2, gain, photoconductor):
+    """Responsivity, D*, D*_BLIP, their ratio and the background-limited flag from the noise terms."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        resp = np.where(power_W > 0, i_sig / np.where(power_W > 0, power_W, 1.0), np.nan)
+    total = total_noise_A_Hz05(*noise.values())
+    d_star = detectivity_from_noise_cm_Hz05_W(resp, total, area_cm2)
+    phi_bg = np.abs(i_bg) / (q_C * gain * area_cm2)           # absorbed background photons [cm^-2 s^-1]
+    blip = detectivity_blip_cm_Hz05_W(resp, phi_bg, gain, photoconductor)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.where(np.isfinite(blip), d_star / blip, np.nan)
+    bg = noise["noise_background_A_Hz05"]
+    rest = np.sqrt(np.maximum(total**2 - bg**2, 0.0))
+    out = {"responsivity_A_W": resp, **noise, "noise_total_A_Hz05": total,
+           "detectivity_cm_Hz05_W": d_star, "detectivity_blip_cm_Hz05_W": np.where(np.isfinite(blip), blip, np.nan),
+           "detectivity_over_blip": ratio, "background_limited": background_limited(rest, bg),
+           "background_absorbed_flux_cm2_s": phi_bg}
+    return out
+
+
+def photoconductor_figures(detector, thickness_cm, T_K, n0_cm3, p0_cm3, n_cm3, p_cm3,
                            mu_dark_cm2_Vs, mu_light_cm2_Vs, tau_eff_s, tau_dark_s,
                            optical_generation_cm3_s, background_generation_cm3_s,
                            irradiance_W_m2):
     """The detector figures of a photoconductor bar, as a dict of arrays (units in the keys).
 
-    detector: `Detector` in photoconductor mode; thickness_cm [cm];
-    n0_cm3, p0_cm3: dark densities [cm^-3]; n_cm3, p_cm3: illuminated densities
-    [cm^-3]; mu_dark_cm2_Vs, mu_light_cm2_Vs: (mu_e, mu_h) pairs of the dark and
-    illuminated states [cm^2 V^-1 s^-1]; tau_eff_s: effective lifetime under
-    light [s]; tau_dark_s: low-injection lifetime for the thermal generation
-    [s]; optical_generation_cm3_s, background_generation_cm3_s: average
-    generation by the source and by the background [cm^-3 s^-1];
-    irradiance_W_m2: incident irradiance of the source on the bar [W m^-2].
+    detector: `Detector` in photoconductor mode; thickness_cm [cm]; T_K [K];
+    n0_cm3, p0_cm3: dark densities [cm^-3]; n_cm3, p_cm3: densities at the
+    operating point (signal + background) [cm^-3]; mu_dark_cm2_Vs,
+    mu_light_cm2_Vs: (mu_e, mu_h) pairs of the dark and illuminated states
+    [cm^2 V^-1 s^-1]; tau_eff_s: effective lifetime at the operating point [s];
+    tau_dark_s: low-injection lifetime for the thermal generation [s];
+    optical_generation_cm3_s, background_generation_cm3_s: average generation
+    by the source and by the background [cm^-3 s^-1]; irradiance_W_m2: incident
+    irradiance of the source on the bar [W m^-2].
 
-    sigma from `optogen.transport.conductivity_S_cm`; currents `bar_current_A`;
-    gain tau_eff/t_tr with t_tr for mu_e + mu_h of the illuminated state
-    (`transit_time_s`); responsivity I_ph / P on the bar area L_el w; the g-r
-    limited D* = R / (2 q g sqrt(G t)) with G = thermal + optical + background
-    (equal to `detectivity_gr_cm_Hz05_W` for a line source); minority ratio =
-    illuminated / dark minority density.  Responsivity and D* are nan where
-    irradiance_W_m2 is 0 (no source: undefined, reported as null by the caller).
+    Currents: dark I0 = sigma_0 (V/L) w t; total photocurrent from
+    sigma_light - sigma_dark (`bar_current_A`); signal and background
+    photocurrents, the linear terms I = q g G (L w t) of each generation with
+    the gain g = tau_eff / t_tr of the operating point (Rose 1963; Sze & Ng 2007
+    sec. 13.2).  Responsivity R = I_signal / P_signal, P on the area L w; null
+    without a source.  Noise (A/Hz^1/2, `gr_noise_photoconductor_A_Hz05`,
+    `johnson_noise_A_Hz05`): g-r noise of the signal, of the background and of
+    the thermal generation G_th, each 4 q^2 g^2 G (L w t); Johnson noise of the
+    bar resistance at the operating point L / (sigma_light w t).
+    D* = R sqrt(L w) / i_total; D*_BLIP = R / (2 q g sqrt(Phi_B)) with Phi_B =
+    G_bg t the absorbed background flux (`detectivity_blip_cm_Hz05_W`).
     """
     require_mode(detector, "photoconductor", "photoconductor_figures")
     L, w = detector.electrode_spacing_cm, detector.width_cm
@@ -443,68 +729,107 @@ def photoconductor_figures(detector, thickness_cm, n0_cm3, p0_cm3, n_cm3, p_cm3,
     i_ph = bar_current_A(sigma - sigma0, V, L, w, t)
     t_tr = transit_time_s(L, _arr(mu_light_cm2_Vs[0]) + _arr(mu_light_cm2_Vs[1]), V)
     gain = photoconductive_gain(tau_eff_s, t_tr)
-    power = _arr(irradiance_W_m2) * 1e-4 * L * w
-    with np.errstate(divide="ignore", invalid="ignore"):
-        resp = np.where(power > 0, i_ph / np.where(power > 0, power, 1.0), np.nan)
+    area, volume = L * w, L * w * t
+    power = _arr(irradiance_W_m2) * 1e-4 * area
     g_th = thermal_generation_cm3_s(n0, p0, tau_dark_s)
     g_opt, g_bg = _arr(optical_generation_cm3_s), _arr(background_generation_cm3_s)
-    d_star = resp / (2.0 * q_C * gain * np.sqrt((g_th + g_opt + g_bg) * t))
+    i_sig = q_C * gain * g_opt * volume
+    i_bg = q_C * gain * g_bg * volume
+    noise = {"noise_signal_A_Hz05": gr_noise_photoconductor_A_Hz05(g_opt, volume, gain),
+             "noise_background_A_Hz05": gr_noise_photoconductor_A_Hz05(g_bg, volume, gain),
+             "noise_thermal_A_Hz05": gr_noise_photoconductor_A_Hz05(g_th, volume, gain),
+             "noise_johnson_A_Hz05": johnson_noise_A_Hz05(sigma * w * t / L, T_K)}
+    figures = _signal_figures(i_sig, i_bg, power, noise, area, gain, True)
     minority_ratio = np.where(n0 >= p0, p / p0, n / n0)
     return {
         "sigma_dark_S_cm": sigma0, "sigma_light_S_cm": sigma,
         "conductivity_contrast": conductivity_contrast(sigma, sigma0),
-        "dark_current_A": i_dark, "photocurrent_A": i_ph,
-        "responsivity_A_W": resp, "transit_time_s": t_tr, "photoconductive_gain": gain,
+        "dark_current_A": i_dark, "signal_current_A": i_sig, "background_current_A": i_bg, "photocurrent_A": i_ph,
+        "transit_time_s": t_tr, "photoconductive_gain": gain,
         "minority_ratio": minority_ratio,
         "thermal_generation_cm3_s": g_th, "optical_generation_cm3_s": g_opt,
-        "background_generation_cm3_s": g_bg,
-        "background_limited": background_limited(g_th, g_bg),
-        "detectivity_cm_Hz05_W": d_star,
+        "background_generation_cm3_s": g_bg, **figures,
     }
 
 
 def photodiode_figures(detector, thickness_cm, T_K, ni_eff_cm3, n0_cm3, p0_cm3, n_cm3, p_cm3,
                        minority_D_cm2_s, tau_dark_s, rear_S_cm_s, photocurrent_mA_cm2,
-                       optical_generation_cm3_s, background_generation_cm3_s, irradiance_W_m2):
-    """The detector figures of a one-sided junction on this absorber (the base), units in the keys.
+                       optical_generation_cm3_s, background_generation_cm3_s, irradiance_W_m2, *,
+                       bandgap_eV, permittivity, electron_mass_m0):
+    """The detector figures of a junction on this absorber (the base), units in the keys.
 
-    Dark current density: the diffusion-limited J0 of the base, thick-base
-    (`j0_thick_base_mA_cm2`) and thin-base with the rear recombination velocity
-    (`j0_base_mA_cm2`), at the bias V as J_dark = J0 |exp(qV/kT) - 1| (ideal
-    diode, Shockley 1949; Sze & Ng 2007 eq. 2.64).  Photocurrent: every
-    photogenerated carrier collected (the generation layer's photocurrent,
-    an upper bound).  Responsivity = J_ph / irradiance.  D*: shot-noise limit
-    R / sqrt(2 q J_dark) under bias, R / sqrt(4 q J0) at zero bias
-    (`detectivity_shot_cm_Hz05_W`; Rogalski 2011, ch. 3 and 12).
+    Dark current, at the bias V, in two parts reported apart and summed:
+    diffusion from the base, J0 (exp(qV/kT) - 1) with the thin-base J0
+    (`j0_base_mA_cm2`, rear recombination velocity; thick-base J0 for
+    comparison; Shockley 1949; Sze & Ng 2007 eq. 2.64), and the depletion-region
+    current (`depletion_current_sah_noyce_shockley_mA_cm2`) over the width of
+    an abrupt junction between the base (N = max(n0, p0), the majority density:
+    the net doping when extrinsic, finite for an intrinsic base) and the junction side
+    (detector.junction_side_doping_cm3, default JUNCTION_SIDE_DOPING_DEFAULT_cm3),
+    V_bi from both dopings, capped at the base thickness; generation lifetime
+    detector.generation_lifetime_s, else the dark low-injection lifetime.
+    R0A from both (`r0a_ohm_cm2`).  Signal current: every photon absorbed from
+    the source collected (the generation layer's photocurrent, an upper bound);
+    background current likewise from G_bg W.  Responsivity = J_signal / irradiance.
+    Noise (A/Hz^1/2): shot noise of the signal and background photocurrents,
+    shot noise of the net dark current and the Johnson term
+    (`photodiode_thermal_noise_A_Hz05`: 4kT/R0 at zero bias).  D* = R sqrt(A) /
+    i_total; D*_BLIP = R / (q sqrt(2 Phi_B)).  A band-to-band tunnelling
+    estimate (`tunnelling_moll1964_mA_cm2`) flags junctions where it would
+    exceed the dark current (`tunnelling_may_dominate`); it is not added.
 
     thickness_cm: base width [cm]; T_K [K]; ni_eff_cm3 [cm^-3]; n0_cm3, p0_cm3,
     n_cm3, p_cm3: dark and illuminated densities [cm^-3]; minority_D_cm2_s:
     minority diffusivity in the base [cm^2/s]; tau_dark_s: low-injection lifetime [s];
-    rear_S_cm_s [cm/s]; photocurrent_mA_cm2 [mA/cm^2]; optical_/background_generation_cm3_s
-    [cm^-3 s^-1]; irradiance_W_m2: incident irradiance of the source [W m^-2].
+    rear_S_cm_s [cm/s]; photocurrent_mA_cm2: signal photocurrent [mA/cm^2];
+    optical_/background_generation_cm3_s [cm^-3 s^-1]; irradiance_W_m2: incident
+    irradiance of the source [W m^-2]; bandgap_eV [eV]; permittivity [-];
+    electron_mass_m0: conduction-band mass for the tunnelling estimate [m0].
     """
     require_mode(detector, "photodiode", "photodiode_figures")
-    n0, p0 = _arr(n0_cm3), _arr(p0_cm3)
-    N = np.abs(n0 - p0)
-    j0_thick = j0_thick_base_mA_cm2(ni_eff_cm3, N, minority_D_cm2_s, tau_dark_s)
-    j0_thin = j0_base_mA_cm2(ni_eff_cm3, N, minority_D_cm2_s, tau_dark_s, thickness_cm, rear_S_cm_s)
-    v_over_kT = detector.bias_V / (k_B_eV_K * _arr(T_K))
-    j_dark = j0_thin * np.abs(np.expm1(v_over_kT))
-    zero_bias = detector.bias_V == 0
-    j_noise = j0_thin if zero_bias else j_dark
-    jph = _arr(photocurrent_mA_cm2)
-    irr = _arr(irradiance_W_m2)
+    T, V, A = _arr(T_K), float(detector.bias_V), detector.area_cm2
+    n0, p0, W = _arr(n0_cm3), _arr(p0_cm3), _arr(thickness_cm)
+    N = np.maximum(n0, p0)        # majority density: the net doping when extrinsic, n_i when intrinsic
+    ni = _arr(ni_eff_cm3)
+    j0_thick = j0_thick_base_mA_cm2(ni, N, minority_D_cm2_s, tau_dark_s)
+    j0_thin = j0_base_mA_cm2(ni, N, minority_D_cm2_s, tau_dark_s, W, rear_S_cm_s)
+    x = V / (k_B_eV_K * T)
+    # junction: base doping N against the junction side
+    nj = detector.junction_side_doping_cm3 or JUNCTION_SIDE_DOPING_DEFAULT_cm3
+    vbi = built_in_potential_V(T, N, nj, ni, bandgap_eV)
+    w_v = np.minimum(depletion_width_cm(permittivity, vbi, V, N, nj), W)
+    w_0 = np.minimum(depletion_width_cm(permittivity, vbi, 0.0, N, nj), W)
+    tau_g = _arr(tau_dark_s) if detector.generation_lifetime_s is None else _arr(detector.generation_lifetime_s)
+    jgr_sat = 1e3 * q_C * ni * w_v / tau_g
+    j_diff = j0_thin * np.abs(np.expm1(x))
+    j_gr = np.abs(depletion_current_sah_noyce_shockley_mA_cm2(ni, w_v, tau_g, V, T))
+    j_dark = j_diff + j_gr                                    # same sign at any bias
+    r0a = r0a_ohm_cm2(T, j0_thin, 1e3 * q_C * ni * w_0 / tau_g)
+    # tunnelling estimate at the peak field of the abrupt junction
+    v_j = np.maximum(vbi - V, 0.0)
     with np.errstate(divide="ignore", invalid="ignore"):
-        resp = np.where(irr > 0, jph * 1e-3 / np.where(irr > 0, irr * 1e-4, 1.0), np.nan)
-        d_star = resp / np.sqrt((4.0 if zero_bias else 2.0) * q_C * j_noise * 1e-3)
-    g_th = thermal_generation_cm3_s(n0, p0, tau_dark_s)
+        field = np.where(w_v > 0, 2.0 * v_j / np.where(w_v > 0, w_v, 1.0), 0.0)
+    j_tun = tunnelling_moll1964_mA_cm2(bandgap_eV, electron_mass_m0, field, max(-V, 0.0) + k_B_eV_K * T)
+    # zero bias: compare dJ/dV, i.e. the tunnelling current over kT/q against the dark currents' (J0 + J_gr0/2)
+    scale = np.where(V == 0.0, j0_thin + 0.5e3 * q_C * ni * w_0 / tau_g, j_dark)
+    i_sig = _arr(photocurrent_mA_cm2) * 1e-3 * A
     g_bg = _arr(background_generation_cm3_s)
+    i_bg = q_C * g_bg * W * A
+    shot_dark, johnson = photodiode_thermal_noise_A_Hz05(T, V, j0_thin, jgr_sat, A)
+    noise = {"noise_signal_A_Hz05": shot_noise_A_Hz05(i_sig), "noise_background_A_Hz05": shot_noise_A_Hz05(i_bg),
+             "noise_thermal_A_Hz05": shot_dark, "noise_johnson_A_Hz05": johnson}
+    figures = _signal_figures(i_sig, i_bg, _arr(irradiance_W_m2) * 1e-4 * A, noise, A, 1.0, False)
+    g_th = thermal_generation_cm3_s(n0, p0, tau_dark_s)
     return {
-        "dark_current_density_thick_base_mA_cm2": j0_thick * np.abs(np.expm1(v_over_kT)),
-        "dark_current_density_mA_cm2": j_dark, "j0_thick_base_mA_cm2": j0_thick, "j0_thin_base_mA_cm2": j0_thin,
-        "dark_current_A": j_dark * 1e-3 * detector.area_cm2, "photocurrent_A": jph * 1e-3 * detector.area_cm2,
-        "responsivity_A_W": resp, "detectivity_cm_Hz05_W": d_star,
+        "dark_current_density_mA_cm2": j_dark, "diffusion_current_density_mA_cm2": j_diff,
+        "depletion_current_density_mA_cm2": j_gr,
+        "dark_current_density_thick_base_mA_cm2": j0_thick * np.abs(np.expm1(x)) + j_gr,
+        "j0_thick_base_mA_cm2": j0_thick, "j0_thin_base_mA_cm2": j0_thin, "j0_depletion_mA_cm2": jgr_sat,
+        "built_in_potential_V": vbi, "depletion_width_um": w_v * 1e4, "generation_lifetime_s": tau_g,
+        "r0a_ohm_cm2": r0a, "tunnelling_estimate_mA_cm2": j_tun, "tunnelling_may_dominate": j_tun > scale,
+        "dark_current_A": j_dark * 1e-3 * A, "signal_current_A": i_sig, "background_current_A": i_bg,
+        "photocurrent_A": i_sig + i_bg,
         "minority_ratio": np.where(n0 >= p0, _arr(p_cm3) / p0, _arr(n_cm3) / n0),
         "thermal_generation_cm3_s": g_th, "optical_generation_cm3_s": _arr(optical_generation_cm3_s),
-        "background_generation_cm3_s": g_bg, "background_limited": background_limited(g_th, g_bg),
+        "background_generation_cm3_s": g_bg, **figures,
     }

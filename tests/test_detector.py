@@ -178,6 +178,10 @@ def test_bad_geometry_and_bias():
         det.Detector(bandwidth_Hz=0.0)
     with pytest.raises(InputError, match="detector.junction_side_doping_cm3"):
         det.Detector(mode="photodiode", junction_side_doping_cm3=-1e18)
+    with pytest.raises(InputError, match="detector.generation_lifetime_s"):
+        det.Detector(mode="photodiode", generation_lifetime_s=0.0)
+    with pytest.raises(InputError, match="detector.generation_lifetime_s"):
+        det.Detector(mode="photoconductor", generation_lifetime_s=1e-6)      # no junction in a bar
     with pytest.raises(InputError, match="detector.mode"):
         det.Detector(mode="bolometer")
     with pytest.raises(InputError, match="detector.spacing_um"):
@@ -193,25 +197,43 @@ def test_photodiode_quantity_in_photoconductor_mode():
 
 
 def test_photoconductor_figures_consistency():
-    # analytic, hand case: constant mobilities, dn = dp = G tau, no thermal or background
-    # generation; monochromatic 1550 nm photon flux Phi with G t = eta Phi
+    # analytic, hand case: constant mobilities, dn = dp = G tau, no background; monochromatic
+    # 1550 nm photon flux Phi with G t = eta Phi
     pc = det.Detector("photoconductor", electrode_spacing_um=1000.0, width_um=200.0, bias_V=5.0)
-    t, tau, G = 20e-4, 1e-5, 1e20
+    t, tau, G, T = 20e-4, 1e-5, 1e20, 300.0
     mu = (1300.0, 450.0)
     n0, p0 = 1e15, 1e5
     dn = G * tau
     eta = 0.6
     phi = G * t / eta                                     # photons cm^-2 s^-1
     irr = phi * sc.h * sc.c / 1550e-9 * 1e4               # W m^-2
-    f = det.photoconductor_figures(pc, t, n0, p0, n0 + dn, p0 + dn, mu, mu, tau, tau, G, 0.0, irr)
+    f = det.photoconductor_figures(pc, t, T, n0, p0, n0 + dn, p0 + dn, mu, mu, tau, tau, G, 0.0, irr)
     L, w = 0.1, 0.02
     gain = tau * (mu[0] + mu[1]) * 5.0 / L**2             # = 1e-5 * 1750 * 5 / 0.01 = 8.75
     assert f["photoconductive_gain"] == pytest.approx(8.75, rel=1e-12)
+    # analytic: I = q g G (L w t); with dn = G tau this is also the Delta sigma bar current
+    assert f["signal_current_A"] == pytest.approx(Q * G * L * w * t * gain, rel=1e-12)
     assert f["photocurrent_A"] == pytest.approx(Q * G * L * w * t * gain, rel=1e-9)
+    assert f["background_current_A"] == 0.0
     assert f["conductivity_contrast"] == pytest.approx(dn * 1750.0 / (n0 * 1300.0 + p0 * 450.0), rel=1e-9)
     assert f["minority_ratio"] == pytest.approx((p0 + dn) / p0, rel=1e-12)
+    # analytic: R = eta g q lambda / (h c) for a line source (Rogalski 2011 ch. 3, from memory)
     assert f["responsivity_A_W"] == pytest.approx(det.responsivity_A_W(1550.0, eta, gain), rel=1e-9)
-    assert f["detectivity_cm_Hz05_W"] == pytest.approx(det.detectivity_gr_cm_Hz05_W(1550.0, G, t, eta), rel=1e-9)
+    # g-r noise of the signal 4 q^2 g^2 G V (Rogalski 2011 ch. 3, from memory); Johnson 4kT/R_bar of the
+    # illuminated bar, R_bar = L / (sigma w t) (Johnson 1928, Nyquist 1928)
+    V = L * w * t
+    assert f["noise_signal_A_Hz05"] == pytest.approx(np.sqrt(4 * Q**2 * gain**2 * G * V), rel=1e-12)
+    sigma = Q * ((n0 + dn) * mu[0] + (p0 + dn) * mu[1])
+    johnson = np.sqrt(4 * sc.k * T * sigma * w * t / L)
+    assert f["noise_johnson_A_Hz05"] == pytest.approx(johnson, rel=1e-12)
+    g_th = n0 * p0 / ((n0 + p0) * tau)                    # Kinch 2007: thermal generation (analytic limit)
+    total = np.sqrt(4 * Q**2 * gain**2 * (G + g_th) * V + johnson**2)
+    assert f["noise_total_A_Hz05"] == pytest.approx(total, rel=1e-9)
+    assert f["detectivity_cm_Hz05_W"] == pytest.approx(f["responsivity_A_W"] * np.sqrt(L * w) / total, rel=1e-9)
+    # every added noise term lowers D* below the signal-g-r-only figure of Rogalski's eq.
+    assert f["detectivity_cm_Hz05_W"] < det.detectivity_gr_cm_Hz05_W(1550.0, G, t, eta)
+    # no background: no background limit (null), never background-limited
+    assert np.isnan(f["detectivity_blip_cm_Hz05_W"]) and np.isnan(f["detectivity_over_blip"])
     assert not f["background_limited"]
     with pytest.raises(InputError, match="detector.mode"):
-        det.photoconductor_figures(det.Detector("photodiode"), t, n0, p0, n0, p0, mu, mu, tau, tau, G, 0.0, irr)
+        det.photoconductor_figures(det.Detector("photodiode"), t, T, n0, p0, n0, p0, mu, mu, tau, tau, G, 0.0, irr)

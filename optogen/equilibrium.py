@@ -32,7 +32,7 @@ __all__ = [
     "ni_nc_nv_eg", "ni_misiakos1993", "ni_hansen_schmit1983", "ni_cm3", "ln_ni_cm3",
     "bgn_klaassen1992", "bgn_schenk1998", "bgn_none", "bgn_eV",
     "ionisation_altermatt2006", "equilibrium", "Equilibrium",
-    "NI_MODELS", "BGN_MODELS",
+    "NI_MODELS", "BGN_MODELS", "STATISTICS",
 ]
 
 # ===========================================================================
@@ -351,18 +351,20 @@ def bgn_schenk1998(T_K, donors_cm3, acceptors_cm3, n_cm3, p_cm3):
     carriers as ions; without the cap the term diverges in compensated or frozen-out
     material.  The cap is inactive in uncompensated, fully ionised silicon.
     T_K: temperature [K]; donors_cm3, acceptors_cm3: dopant densities [cm^-3]
-    n_cm3, p_cm3: electron and hole densities [cm^-3]
+    n_cm3, p_cm3: electron and hole densities [cm^-3]; complex values are accepted (the
+        complex-step derivative used by optogen.recombination for precise differences)
     returns: dEg [eV] (>= 0)
     """
     T = np.asarray(T_K, dtype=float)
     a3 = _SCHENK_A_cm ** 3
     t = kT_eV(T) / _SCHENK_RY_eV
-    ne = np.asarray(n_cm3, dtype=float) * a3
-    nh = np.asarray(p_cm3, dtype=float) * a3
+    ne = _real_or_complex(n_cm3) * a3
+    nh = _real_or_complex(p_cm3) * a3
     ns = ne + nh
     P = _SCHENK
     n_p = P["alpha"][0] * ne + P["alpha"][1] * nh
-    ni = np.minimum((np.asarray(donors_cm3, dtype=float) + np.asarray(acceptors_cm3, dtype=float)) * a3, ns)
+    N_ion = (np.asarray(donors_cm3, dtype=float) + np.asarray(acceptors_cm3, dtype=float)) * a3
+    ni = np.where(N_ion < np.real(ns), N_ion, ns)          # the cap at n + p (real comparison)
     U = ns ** 2 / t ** 3
     total = 0.0
     for i, na in enumerate((ne, nh)):
@@ -372,10 +374,17 @@ def bgn_schenk1998(T_K, donors_cm3, acceptors_cm3, n_cm3, p_cm3):
         den = (4 * np.pi) ** 3 * ns ** 2 + t ** 3 + P["b"][i] * np.sqrt(ns) * t ** 2 + 40.0 * n_p ** 1.5 * t
         ion_den = (np.sqrt(t * n_p / (2 * np.pi)) * (1 + P["h"][i] * np.log1p(np.sqrt(ns) / t))
                    + P["j"][i] * U * n_p ** 0.75 * (1 + P["k"][i] * n_p ** P["q"][i]))
-        ion = np.divide(ni * (1 + U), ion_den, out=np.zeros(np.broadcast(ni, ion_den).shape),
-                        where=ion_den > 0)
+        num_i = ni * (1 + U)
+        ion = np.divide(num_i, ion_den, out=np.zeros(np.broadcast_shapes(np.shape(num_i), np.shape(ion_den)),
+                                                     dtype=np.result_type(num_i, ion_den)),
+                        where=np.real(ion_den) > 0)
         total = total + num / den + ion
     return _SCHENK_RY_eV * total
+
+
+def _real_or_complex(a):
+    """a as a float array, or as a complex array if it is complex (complex-step derivatives)."""
+    return np.asarray(a) if np.iscomplexobj(a) else np.asarray(a, dtype=float)
 
 
 def bgn_none(doping_cm3):
@@ -411,6 +420,14 @@ _BGN_ALIASES = {"klaassen": "klaassen1992", "slotboom": "klaassen1992",
                 "off": "none", "no": "none"}
 
 
+#: carrier statistics each band-gap narrowing model is defined with.  Klaassen 1992 is an
+#: *apparent* narrowing, fitted to measured n0 p0 products read with Boltzmann statistics;
+#: it is combined with Boltzmann statistics (n = Nc exp(eta), p = Nv exp(eta_p)), so that
+#: n0 p0 = n_i,eff^2 exactly at every doping.  Schenk 1998 is the real (full RPA) shift of
+#: the band edges and is used with Fermi-Dirac statistics, like the unnarrowed gap.
+STATISTICS = {"klaassen1992": "boltzmann", "schenk1998": "fermi_dirac", "none": "fermi_dirac"}
+
+
 def _bgn_default(material):
     return getattr(material, "bgn_model", None) or "none"
 
@@ -435,7 +452,7 @@ def bgn_eV(material: Material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3
         n_est, p_est = _carrier_guess(nd, na, ln_ni_cm3(material, T))
         n_cm3 = n_est if n_cm3 is None else n_cm3
         p_cm3 = p_est if p_cm3 is None else p_cm3
-    return fn(material, T, nd, na, np.asarray(n_cm3, dtype=float), np.asarray(p_cm3, dtype=float))
+    return fn(material, T, nd, na, _real_or_complex(n_cm3), _real_or_complex(p_cm3))
 
 
 # ===========================================================================
@@ -505,7 +522,9 @@ class Equilibrium:
     bandgap_eV is Eg(T) without narrowing; bgn_eV the narrowing; effective_gap_eV the gap of
     the statistics, Nc Nv exp(-Eg_eff/kT) = ni_eff^2.  ``ln_*_cm3`` fields are natural logs
     of densities [ln cm^-3] (finite where the linear value underflows to 0.0, e.g. n_i of
-    Si at 4 K).  material, ni_model, bgn_model, donor, acceptor: the names used.
+    Si at 4 K).  material, ni_model, bgn_model, donor, acceptor: the names used;
+    statistics: "fermi_dirac" or "boltzmann", the carrier statistics of the narrowing model
+    (`STATISTICS`).
     """
 
     temperature_K: np.ndarray
@@ -533,6 +552,7 @@ class Equilibrium:
     bgn_model: str = ""
     donor: str | None = None
     acceptor: str | None = None
+    statistics: str = "fermi_dirac"
 
     _DICT_KEYS = ("n0_cm3", "p0_cm3", "ni_cm3", "ni_eff_cm3", "fermi_level_eV", "bandgap_eV",
                   "ionised_donors_cm3", "ionised_acceptors_cm3")
@@ -546,10 +566,21 @@ class Equilibrium:
         return out
 
 
-def _neutrality(E, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba, lba1):
-    """f = ln(p0 + N_D^+) - ln(n0 + N_A^-) and df/dE_F [1/eV] at Fermi level E [eV]; plus the logs."""
-    lfc, lfmc = _log_fd_pair((E - eg) / kT)
-    lfv, lfmv = _log_fd_pair(-E / kT)
+def _log_occupancy(eta, boltzmann: bool = False):
+    """ln F_1/2(eta) and ln F_-1/2(eta) [-]; both are eta itself with Boltzmann statistics."""
+    if boltzmann:
+        eta = np.asarray(eta, dtype=float)
+        return eta, eta
+    return _log_fd_pair(eta)
+
+
+def _neutrality(E, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba, lba1, boltzmann=False):
+    """f = ln(p0 + N_D^+) - ln(n0 + N_A^-) and df/dE_F [1/eV] at Fermi level E [eV]; plus the logs.
+
+    boltzmann: carriers with Boltzmann instead of Fermi-Dirac statistics (see `STATISTICS`).
+    """
+    lfc, lfmc = _log_occupancy((E - eg) / kT, boltzmann)
+    lfv, lfmv = _log_occupancy(-E / kT, boltzmann)
     ln_n, ln_p = lnc + lfc, lnv + lfv
     x = (E - ed) / kT + lgd                 # donor level occupied by an electron: expit(x)
     y = (ea - E) / kT + lga                 # acceptor level occupied by a hole: expit(y)
@@ -565,10 +596,13 @@ def _neutrality(E, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba,
     return lP - lQ, dP - dQ, ln_n, ln_p, ln_ndp, ln_nam
 
 
-def _solve_fermi(guess, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba, lba1, tol=1e-13):
+def _solve_fermi(guess, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba, lba1, tol=1e-13,
+                 boltzmann=False):
     """Safeguarded Newton (bisection fallback) for the Fermi level [eV], all points at once.
 
     guess: starting Fermi level [eV] (used where it lies inside the bracket)
+    boltzmann: Boltzmann carrier statistics (the bracket below also holds for them,
+        since e^eta >= F_1/2(eta))
     """
     args = (kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba, lba1)
     ei = 0.5 * eg + 0.5 * kT * (lnv - lnc)
@@ -576,8 +610,8 @@ def _solve_fermi(guess, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1,
     hi = np.maximum(ei + 2 * kT, eg + kT * inverse_log_fermi_dirac_half(np.log(2.0) + lnd - lnc))
     lo = np.minimum(ei - 2 * kT, -kT * inverse_log_fermi_dirac_half(np.log(2.0) + lna - lnv))
     for _ in range(200):                      # widen until the bracket holds (rarely needed)
-        f_hi = _neutrality(hi, *args)[0]
-        f_lo = _neutrality(lo, *args)[0]
+        f_hi = _neutrality(hi, *args, boltzmann=boltzmann)[0]
+        f_lo = _neutrality(lo, *args, boltzmann=boltzmann)[0]
         bad_hi, bad_lo = f_hi > 0, f_lo < 0
         if not (bad_hi.any() or bad_lo.any()):
             break
@@ -592,7 +626,7 @@ def _solve_fermi(guess, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1,
             break
         sub = tuple(a[idx] for a in args)
         e = E[idx]
-        f, df = _neutrality(e, *sub)[:2]
+        f, df = _neutrality(e, *sub, boltzmann=boltzmann)[:2]
         done = np.abs(f) <= tol
         l, h = lo[idx], hi[idx]
         l = np.where(f > 0, e, l)
@@ -607,7 +641,7 @@ def _solve_fermi(guess, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1,
         stuck = ((h - l) <= 4 * ulp) | (ok & (np.abs(newton - e) <= 2 * ulp))
         E[idx] = np.where(done, e, nxt)
         active[idx] = ~(done | stuck)
-    return E, _neutrality(E, *args)
+    return E, _neutrality(E, *args, boltzmann=boltzmann)
 
 
 def equilibrium(material: Material, temperature_K, donors_cm3=0.0, acceptors_cm3=0.0, *,
@@ -618,7 +652,9 @@ def equilibrium(material: Material, temperature_K, donors_cm3=0.0, acceptors_cm3
     Carriers: Fermi-Dirac statistics n0 = Nc F_1/2((E_F - Ec)/kT), p0 = Nv F_1/2((Ev - E_F)/kT),
     with Ec - Ev = Eg_eff and Nc Nv exp(-Eg_eff/kT) = n_i,eff^2, n_i,eff = n_i exp(dEg/2kT)
     for the chosen n_i and band-gap narrowing models (so n0 p0 = n_i,eff^2 whenever both are
-    non-degenerate).  Dopants: `ionisation_altermatt2006` with each species' ionisation
+    non-degenerate).  With an apparent narrowing (klaassen1992, defined through Boltzmann
+    statistics) the carriers follow Boltzmann statistics instead, n0 = Nc exp((E_F - Ec)/kT),
+    so that n0 p0 = n_i,eff^2 holds exactly, as in the model's definition (`STATISTICS`).  Dopants: `ionisation_altermatt2006` with each species' ionisation
     energy and degeneracy factor (incomplete_ionisation=False: all ionised).  A material
     without a listed species of the needed kind is taken as fully ionised.
     Carrier-dependent narrowing (schenk1998) is iterated to self-consistency with n0, p0.
@@ -644,11 +680,18 @@ def equilibrium(material: Material, temperature_K, donors_cm3=0.0, acceptors_cm3
                                    BGN_MODELS, _BGN_ALIASES)
     don = _species(material, donor, "donor")
     acc = _species(material, acceptor, "acceptor")
+    stats = STATISTICS[bgn_name]
 
     kT = kT_eV(T)
     eg = material.bandgap_eV(T)
     lnc, lnv = np.log(material.nc_cm3(T)), np.log(material.nv_cm3(T))
     ln_ni = ni_fn(material, T)
+    if np.any(~(eg > 0)):                     # e.g. InSb above ~810 K: the gap of the model has closed
+        i = int(np.flatnonzero(~(eg > 0))[0])
+        raise InputError("absorber.temperature_K", float(T[i]),
+                         f"a temperature at which {material.name} has a band gap (Eg({T[i]:g} K) = "
+                         f"{float(eg[i]):.4g} eV from its band-gap model)",
+                         "at this temperature the model describes a semimetal, not a semiconductor")
     with np.errstate(divide="ignore"):
         lnd, lna = np.log(nd), np.log(na)
     zero = np.zeros_like(T)
@@ -674,7 +717,8 @@ def equilibrium(material: Material, temperature_K, donors_cm3=0.0, acceptors_cm3
         k, c, v, d, a, e0, e_a, gd, ga, bd, bd1, ba, ba1 = (x[idx] for x in per_point)
         gap = k * (c + v) - 2.0 * k * ln_ni[idx] - dEg[idx]           # Eg_eff of these points
         E[idx], (_, _, ln_n[idx], ln_p[idx], ln_ndp[idx], ln_nam[idx]) = _solve_fermi(
-            E[idx], k, gap, c, v, d, a, gap - e0, e_a, gd, ga, bd, bd1, ba, ba1)
+            E[idx], k, gap, c, v, d, a, gap - e0, e_a, gd, ga, bd, bd1, ba, ba1,
+            boltzmann=stats == "boltzmann")
         if bgn_fn is not _bgn_schenk or it == 49:
             break
         # carrier-dependent narrowing: iterate to self-consistency, only where it still moves
@@ -701,6 +745,7 @@ def equilibrium(material: Material, temperature_K, donors_cm3=0.0, acceptors_cm3
         ln_n0_cm3=out(ln_n), ln_p0_cm3=out(ln_p), ln_ni_cm3=out(ln_ni), ln_ni_eff_cm3=out(ln_ni_eff),
         material=material.name, ni_model=ni_name, bgn_model=bgn_name,
         donor=None if don is None else don.name, acceptor=None if acc is None else acc.name,
+        statistics=stats,
     )
 
 

@@ -35,6 +35,7 @@ import numpy as np
 from . import _dispatch
 from .constants import kT_eV, q_C
 from .equilibrium import bgn_eV, ni_nc_nv_eg
+from . import schema as _schema
 from .errors import InputError, check_range, did_you_mean
 
 MECHANISMS = ("srh", "radiative", "auger", "surface")
@@ -56,7 +57,11 @@ def excess_product_cm6(n0_cm3, p0_cm3, delta_n_cm3, ni2_shift=0.0):
     n0, p0, dn = (np.asarray(a, dtype=float) for a in (n0_cm3, p0_cm3, delta_n_cm3))
     out = dn * (n0 + p0 + dn)
     if np.any(ni2_shift):
-        out = out - n0 * p0 * np.expm1(ni2_shift)
+        # n0 p0 = 0 (below the float range) contributes nothing, even for a huge shift; a shift
+        # beyond the float range gives -inf (a product the model cannot support), never NaN
+        with np.errstate(over="ignore", invalid="ignore"):
+            n0p0 = n0 * p0
+            out = out - np.where(n0p0 > 0, n0p0 * np.expm1(ni2_shift), 0.0)
     return out
 
 
@@ -91,13 +96,14 @@ def srh_shockley_read_hall1952(n0_cm3, p0_cm3, delta_n_cm3, tau_n0_s, tau_p0_s, 
 def _srh_rates(n0, p0, dn, a, b, n1, p1, ni2_shift=0.0):
     """SRH with capture rates a = 1/tau_n0, b = 1/tau_p0 [s^-1]; shapes (..., K) for K levels."""
     exc = excess_product_cm6(n0, p0, dn, ni2_shift)[..., None]
-    if np.any(ni2_shift):
-        s = np.exp(0.5 * np.asarray(ni2_shift))[..., None]
-        n1, p1 = n1 * s, p1 * s
-    n, p = (n0 + dn)[..., None], (p0 + dn)[..., None]
-    den = a * (n + n1) + b * (p + p1)
-    num = exc * a * b
-    out = np.divide(num, den, out=np.zeros(np.broadcast_shapes(num.shape, den.shape)), where=den > 0)
+    with np.errstate(over="ignore", invalid="ignore"):     # a shift beyond the float range: NaN, not a warning
+        if np.any(ni2_shift):
+            s = np.exp(0.5 * np.asarray(ni2_shift))[..., None]
+            n1, p1 = n1 * s, p1 * s
+        n, p = (n0 + dn)[..., None], (p0 + dn)[..., None]
+        den = a * (n + n1) + b * (p + p1)
+        num = exc * a * b
+        out = np.divide(num, den, out=np.zeros(np.broadcast_shapes(num.shape, den.shape)), where=den > 0)
     return out.sum(axis=-1)
 
 
@@ -215,8 +221,7 @@ DEFECTS: dict[str, Defect] = {
     "FeB": Defect("FeB", 0.26, "Ec", 5e-15, 3e-15, source=_ISTRATOV),
 }
 
-_DEFECT_KEYS = ("name", "energy_eV", "energy_ref", "sigma_n_cm2", "sigma_p_cm2", "density_cm3",
-                "tau_n0_s", "tau_p0_s", "source")
+_DEFECT_KEYS = _schema.section_keys("recombination.defects.*")    # declared once in optogen.schema
 
 
 def defect_from_table(table: Mapping, label: str = "recombination.defects.0") -> Defect:
@@ -432,8 +437,7 @@ def surface_velocity(delta_n_cm3, S_cm_s, thickness_cm):
 # Gathering parameters: Recombination -> PreparedRates (flat per-point constants)
 # ---------------------------------------------------------------------------
 
-_TABLE_KEYS = ("intrinsic", "bandgap_narrowing", "front_J0_fA_cm2", "front_S_cm_s", "rear_J0_fA_cm2",
-               "rear_S_cm_s", "defects", "photon_recycling", "B_rel", "injection_bgn", "J0_reference_K")
+_TABLE_KEYS = _schema.section_keys("recombination")               # declared once in optogen.schema
 
 #: band-gap narrowing models whose narrowing depends on the carrier densities
 INJECTION_BGN_MODELS = ("schenk1998", "schenk")
@@ -670,6 +674,8 @@ class PreparedRates:
             raise InputError("recombination", "no mechanism",
                              "at least one recombination mechanism (defects, Auger/radiative coefficients "
                              "of the material, or a surface)")
+        # carrier statistics of the narrowing model (optogen.equilibrium.STATISTICS)
+        self.statistics = getattr(eq, "statistics", "fermi_dirac")
         # injection-dependent band-gap narrowing
         self.inj_bgn = rec.uses_injection_bgn(eq)
         self.bgn_model = rec.bgn_model_for(eq)
@@ -681,7 +687,8 @@ class PreparedRates:
     # -- helpers ---------------------------------------------------------
     def _bgn(self, n, p, sub=None):
         T, nd, na = (self.T, self.nd, self.na) if sub is None else sub
-        return np.asarray(bgn_eV(self.material, T, nd, na, n_cm3=n, p_cm3=p, model=self.bgn_model), dtype=float)
+        out = bgn_eV(self.material, T, nd, na, n_cm3=n, p_cm3=p, model=self.bgn_model)
+        return np.asarray(out) if np.iscomplexobj(out) else np.asarray(out, dtype=float)
 
     def __len__(self):
         return self.T.shape[0]
@@ -694,11 +701,50 @@ class PreparedRates:
             setattr(new, k, getattr(self, k)[idx])
         return new
 
-    def ni2_shift(self, dn):
-        """ln(n_i,eff^2(n, p) / (n0 p0)) at excess density dn [-] (0 without injection BGN)."""
+    def ni2_shift(self, dn, precise: bool = True):
+        """ln(n_i,eff^2(n, p) / (n0 p0)) at excess density dn [-] (0 without injection BGN).
+
+        precise=False: always the plain difference (enough where U need not be resolved to
+        1e-10, e.g. the implied J-V curve).
+
+        (dEg(n0 + dn, p0 + dn) - dEg(n0, p0)) / kT.  The plain difference of two nearly equal
+        narrowings carries an absolute error of a few ulp of dEg; in U that error is weighted
+        by n0 p0 / (dn (n0 + p0)) ~ min(n0, p0) / dn, so it only matters where dn is well below
+        the minority density (near-intrinsic material at high temperature: up to ~5e-10 of U,
+        enough to miss the 1e-10 residual).  There, dn < 1e-2 min(n0, p0), the difference is
+        `_shift_integral` instead (no subtraction).
+        """
         if not self.inj_bgn:
             return 0.0
-        return (self._bgn(self.n0 + dn, self.p0 + dn) - self.bgn0) / self.kT
+        dn = np.asarray(dn, dtype=float)
+        with np.errstate(over="ignore", invalid="ignore"):
+            out = (self._bgn(self.n0 + dn, self.p0 + dn) - self.bgn0) / self.kT
+        small = np.flatnonzero((dn > 0) & (dn < 1e-2 * np.minimum(self.n0, self.p0)))
+        if small.size and precise:
+            out = np.array(out, dtype=float, copy=True)
+            out[small] = self._shift_integral(small, dn[small]) / self.kT[small]
+        return out
+
+    def _shift_integral(self, idx, dn):
+        """dEg(n0 + dn, p0 + dn) - dEg(n0, p0) [eV] for dn < 1e-2 min(n0, p0), without cancellation.
+
+        The integral over s = 0..dn of d dEg(n0 + s, p0 + s)/ds, split where n + p crosses the
+        ion density (the kink of the ion-density cap in `bgn_schenk1998`), each piece by 2-point
+        Gauss-Legendre (relative error ~ (dn / min(n0, p0))^4 / 4320 < 3e-12); the derivative by
+        the complex step Im dEg(n + i h, p + i h) / h, exact to rounding (W. Squire and
+        G. Trapp, SIAM Rev. 40, 110 (1998), doi:10.1137/S003614459631241X).
+        """
+        sub = (self.T[idx], self.nd[idx], self.na[idx])
+        n0, p0 = self.n0[idx], self.p0[idx]
+        kink = np.clip(0.5 * (self.nd[idx] + self.na[idx] - n0 - p0), 0.0, dn)
+        h = 1e-30 * (n0 + p0)
+        total = np.zeros(idx.size)
+        for lo, hi in ((0.0, kink), (kink, dn)):
+            for node in (0.5 - 0.5 / np.sqrt(3.0), 0.5 + 0.5 / np.sqrt(3.0)):
+                s = lo + node * (hi - lo)
+                f = self._bgn(n0 + s + 1j * h, p0 + s + 1j * h, sub)
+                total += 0.5 * (hi - lo) * np.imag(f) / h
+        return total
 
     def rates(self, dn, shift=None):
         """(srh, radiative, auger, surface) rates at excess density dn (length P) [cm^-3 s^-1]."""
@@ -710,7 +756,7 @@ class PreparedRates:
         srh = _srh_rates(n0, p0, dn, self.srh_a, self.srh_b, self.n1, self.p1, shift) if self.n1.shape[-1] else 0.0 * dn
         rad = self.rad_B * exc
         aug = exc * (self.aug_A + self.aug_C * dn**self.aug_e)
-        with np.errstate(invalid="ignore", divide="ignore"):
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             sj = np.where(self.s_j0 > 0, self.s_j0 * exc / (n0 * p0 * np.exp(shift)), 0.0)
         surf = sj + self.s_s * dn
         return srh, rad, aug, surf

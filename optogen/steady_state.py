@@ -33,69 +33,88 @@ RTOL = 1e-10
 _FTOL = 2e-11            # on ln(U/G) inside the iteration
 _CHUNK = 262_144         # points per chunk: bounds the working memory (~100 MB)
 _LOW_INJ = 1e-9          # Delta n / max(n0, p0) used for low-injection limits in the dark
-_X_MAX = 700.0           # ln(Delta n) cap [ln cm^-3]
+_X_MIN = -700.0          # lowest ln(Delta n) searched [ln cm^-3] (Delta n ~ 1e-304 cm^-3)
+#: highest excess density the models are used at [cm^-3]: above the densities any of the
+#: recombination and narrowing fits were made for, below the atomic density of the
+#: absorbers (Si: 5e22 cm^-3, common practice); a root above it is flagged, not reported
+DN_MAX_CM3 = 1e22
+_X_MAX = float(np.log(DN_MAX_CM3))
 
 
 # ---------------------------------------------------------------------------
-# Root finding on x = ln(Delta n): f(x) = ln U(e^x) - ln G, increasing in x
+# Root finding on x = ln(Delta n): f(x) = ln U(e^x) - ln G
 # ---------------------------------------------------------------------------
 
-def _f(prep: PreparedRates, x, lg):
-    with np.errstate(over="ignore", invalid="ignore"):
-        u = prep.total(np.exp(x))
-    return np.log(np.maximum(u, 1e-300)) - lg
+def _f(prep: PreparedRates, x, lg, bgn=True):
+    """ln U(e^x) - ln G [-]; -inf where U is not a positive finite number.
+
+    bgn: with the injection-dependent narrowing (False: n_i,eff fixed at its dark value;
+    every mechanism then grows monotonically with Delta n).  U <= 0 can only occur far
+    outside the models' range (a narrowing that outgrows n p); it counts as "below G", so
+    a bracket never ends there.
+    """
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+        u = sum(prep.rates(np.exp(x), None if bgn else 0.0))
+        ok = np.isfinite(u) & (u > 0)
+        return np.where(ok, np.log(np.where(ok, u, 1.0)), -np.inf) - lg
 
 
-def _solve_flat(prep: PreparedRates, G):
-    """Delta n [cm^-3] with G = U(Delta n) for flat arrays; returns (dn, converged)."""
-    P = len(G)
-    dn = np.zeros(P)
-    ids = np.flatnonzero(G > 0)
-    if ids.size == 0:
-        return dn, np.ones(P, bool)
-    sub = prep.take(ids)
-    lg = np.log(G[ids])
-    # first guess: G x low-injection lifetime
-    d0 = _LOW_INJ * np.maximum(sub.n0, sub.p0)
-    u0 = sub.total(d0)
-    with np.errstate(divide="ignore"):
-        x0 = np.clip(np.log(d0) - np.log(np.maximum(u0, 1e-300)) + lg, -_X_MAX, _X_MAX)
-    f0 = _f(sub, x0, lg)
-    # bracket [a, b] with f(a) <= 0 <= f(b), expanding geometrically from x0
+def _bracket(prep, lg, x0, f0, bgn, step0):
+    """Bracket [a, b] of ln(Delta n) with f(a) <= 0 <= f(b), widening from x0 in geometric steps.
+
+    Each step moves only the end that still has the wrong sign; the end it leaves becomes
+    the other end (so the bracket stays tight).  Search range [_X_MIN, _X_MAX].
+    Returns a, fa, b, fb and whether the bracket holds.
+    """
     a, fa, b, fb = x0.copy(), f0.copy(), x0.copy(), f0.copy()
-    need_lo, need_hi = f0 > 0, f0 < 0
-    step = np.ones_like(x0)
+    need_lo, need_hi = f0 > 0, ~(f0 >= 0)          # NaN-safe: -inf or NaN needs a higher x
+    step = np.full_like(x0, step0)
     for _ in range(64):
         if not (need_lo.any() or need_hi.any()):
             break
-        for need, x, fx, sign in ((need_lo, a, fa, -1.0), (need_hi, b, fb, 1.0)):
-            k = np.flatnonzero(need)
-            if k.size:
-                xn = np.clip(x[k] + sign * step[k], -_X_MAX, _X_MAX)
-                fn = _f(sub.take(k), xn, lg[k])
-                x[k], fx[k] = xn, fn
-                need[k] = (sign * fn < 0) & (np.abs(xn) < _X_MAX)
+        k = np.flatnonzero(need_hi)
+        if k.size:
+            xn = np.minimum(b[k] + step[k], _X_MAX)
+            fn = _f(prep.take(k), xn, lg[k], bgn)
+            a[k], fa[k] = b[k], fb[k]               # the old upper end had f < 0
+            b[k], fb[k] = xn, fn
+            need_hi[k] = ~(fn >= 0) & (xn < _X_MAX)
+        k = np.flatnonzero(need_lo)
+        if k.size:
+            xn = np.maximum(a[k] - step[k], _X_MIN)
+            fn = _f(prep.take(k), xn, lg[k], bgn)
+            b[k], fb[k] = a[k], fa[k]               # the old lower end had f > 0
+            a[k], fa[k] = xn, fn
+            need_lo[k] = (fn > 0) & (xn > _X_MIN)
         step *= 2.0
-    # lower ends that never reached f <= 0 (only at the float floor) and upper ends f >= 0
-    ok_bracket = (fa <= 0) & (fb >= 0)
-    # Illinois (modified regula falsi), vectorised over the still-active points
-    best_x = np.where(np.abs(fa) < np.abs(fb), a, b)
-    best_f = np.minimum(np.abs(fa), np.abs(fb))
-    act = np.flatnonzero(ok_bracket & (best_f > _FTOL))
-    side = np.zeros(len(ids), np.int8)
-    cur = sub.take(act) if act.size < len(ids) else sub
+    return a, fa, b, fb, (fa <= 0) & (fb >= 0)
+
+
+def _illinois(prep, lg, a, fa, b, fb, ok, bgn):
+    """Illinois (modified regula falsi) on brackets [a, b], vectorised over the active points.
+
+    Falls back to bisection where the secant leaves the bracket or is not finite.
+    Returns the best x and |f| there.
+    """
+    a, fa, b, fb = a.copy(), fa.copy(), b.copy(), fb.copy()
+    with np.errstate(invalid="ignore"):
+        best_x = np.where(np.abs(fa) < np.abs(fb), a, b)
+        best_f = np.minimum(np.abs(fa), np.abs(fb))
+    act = np.flatnonzero(ok & ~(best_f <= _FTOL))
+    side = np.zeros(len(lg), np.int8)
+    cur = prep.take(act) if act.size < len(lg) else prep
     for _ in range(200):
         if act.size == 0:
             break
         A, FA, B, FB = a[act], fa[act], b[act], fb[act]
-        with np.errstate(invalid="ignore", divide="ignore"):
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             x = (A * FB - B * FA) / (FB - FA)
-        bad = ~np.isfinite(x) | (x <= np.minimum(A, B)) | (x >= np.maximum(A, B))
+            bad = ~np.isfinite(x) | (x <= np.minimum(A, B)) | (x >= np.maximum(A, B))
         x = np.where(bad, 0.5 * (A + B), x)
-        fx = _f(cur, x, lg[act])
+        fx = _f(cur, x, lg[act], bgn)
         better = np.abs(fx) < best_f[act]
         best_x[act[better]], best_f[act[better]] = x[better], np.abs(fx[better])
-        lo = fx < 0
+        lo = ~(fx >= 0)
         s = side[act]
         # replace the end with the same sign; halve the other end's f if it was kept twice
         a[act] = np.where(lo, x, A)
@@ -109,10 +128,48 @@ def _solve_flat(prep: PreparedRates, G):
             continue
         act = act[keep]
         cur = cur.take(np.flatnonzero(keep))
-    dn[ids] = np.exp(best_x)
-    u = sub.total(dn[ids])
+    return best_x, best_f
+
+
+def _solve_flat(prep: PreparedRates, G):
+    """Delta n [cm^-3] with G = U(Delta n) for flat arrays; returns (dn, converged).
+
+    Two stages, both bracketed in x = ln(Delta n) and refined by Illinois regula falsi:
+    1. n_i,eff held at its dark value: U is then the sum of mechanisms that each grow
+       monotonically with Delta n, so the bracket found by widening from the start
+       G x tau_low-injection encloses the one root.
+    2. With an injection-dependent narrowing (Schenk 1998) the rate is recomputed with
+       n_i,eff(n, p).  The stage-1 root is a valid start (the narrowing changes U by a
+       factor that is small there), and the bracket is widened from it in small steps,
+       so it stops at the first sign change above the dark-gap answer and never reaches
+       the densities where the narrowed n p - n_i,eff^2 turns negative (beyond 1e21 cm^-3
+       at 300 K; about 1e16 cm^-3 at 4 K).
+    A point whose root lies outside [1e-304, DN_MAX_CM3] cm^-3, or misses the residual
+    |G - U| <= RTOL G, is returned with converged = False.
+    """
+    P = len(G)
+    dn = np.zeros(P)
+    ids = np.flatnonzero(G > 0)
+    if ids.size == 0:
+        return dn, np.ones(P, bool)
+    sub = prep.take(ids)
+    lg = np.log(G[ids])
+    # stage 1 start: G x low-injection lifetime (dark n_i,eff)
+    d0 = _LOW_INJ * np.maximum(sub.n0, sub.p0)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        u0 = sum(sub.rates(d0, 0.0))
+        x0 = np.log(d0) - np.log(u0) + lg
+    x0 = np.clip(np.where(np.isfinite(x0), x0, _X_MIN), _X_MIN, _X_MAX)
+    a, fa, b, fb, ok = _bracket(sub, lg, x0, _f(sub, x0, lg, False), False, 1.0)
+    x, _ = _illinois(sub, lg, a, fa, b, fb, ok, False)
+    if sub.inj_bgn:
+        a, fa, b, fb, ok = _bracket(sub, lg, x, _f(sub, x, lg, True), True, 0.05)
+        x, _ = _illinois(sub, lg, a, fa, b, fb, ok, True)
+    dn[ids] = np.exp(x)
+    with np.errstate(over="ignore", invalid="ignore"):
+        u = sub.total(dn[ids])
     conv = np.ones(P, bool)
-    conv[ids] = ok_bracket & (np.abs(u - G[ids]) <= RTOL * G[ids])
+    conv[ids] = ok & (np.abs(u - G[ids]) <= RTOL * G[ids])
     return dn, conv
 
 
@@ -130,10 +187,11 @@ def _eta_shift(log_y0, log_ratio, y_minus_y0):
     eta = log_ratio + y_minus_y0 / 2.0**1.5
     deg = (log_y0 + log_ratio) >= np.log(1e-6)
     if np.any(deg):
-        from .equilibrium import inverse_fermi_dirac_half
-        y0 = np.exp(log_y0[deg])
+        # both ends from their logs: the dark density may lie below the float range (4 K)
+        from .equilibrium import inverse_log_fermi_dirac_half
         eta = np.array(eta, dtype=float, copy=True)
-        eta[deg] = inverse_fermi_dirac_half(y0 + y_minus_y0[deg]) - inverse_fermi_dirac_half(y0)
+        eta[deg] = (inverse_log_fermi_dirac_half(log_y0[deg] + log_ratio[deg])
+                    - inverse_log_fermi_dirac_half(log_y0[deg]))
     return eta
 
 
@@ -143,8 +201,19 @@ def _exp_or_inf(x):
         return np.exp(x)
 
 
+#: a quasi-Fermi level closer than this to its band edge (or inside the band) makes a
+#: point degenerate [kT] (the usual 3 kT rule, e.g. Sze & Ng 2007 sec. 1.5; common practice)
+DEGENERATE_KT = 3.0
+
+
 def _state_flat(prep: PreparedRates, dn):
-    """Every output quantity (flat) at excess density dn [cm^-3]."""
+    """Every output quantity (flat) at excess density dn [cm^-3].
+
+    Quasi-Fermi levels use the carrier statistics of the narrowing model (prep.statistics):
+    Fermi-Dirac, or Boltzmann for an apparent narrowing (klaassen1992), for which the
+    splitting is exactly kT ln(n p / n_i,eff^2).  ``degenerate`` is True where either
+    quasi-Fermi level lies within DEGENERATE_KT kT of its band edge or inside the band.
+    """
     shift = prep.ni2_shift(dn)
     with np.errstate(divide="ignore"):
         ldn = np.log(dn)
@@ -152,8 +221,15 @@ def _state_flat(prep: PreparedRates, dn):
     lr_p = np.logaddexp(0.0, ldn - prep.log_p0)          # ln(p / p0)
     ln_ratio = lr_n + lr_p - shift
     # quasi-Fermi levels moved from the dark Fermi level; Ec moves down by the extra narrowing
-    e_qfl = prep.ef - shift * prep.kT + prep.kT * _eta_shift(prep.log_n0 - np.log(prep.nc), lr_n, dn / prep.nc)
-    h_qfl = prep.ef - prep.kT * _eta_shift(prep.log_p0 - np.log(prep.nv), lr_p, dn / prep.nv)
+    if prep.statistics == "boltzmann":
+        eta_n, eta_p = lr_n, lr_p
+    else:
+        eta_n = _eta_shift(prep.log_n0 - np.log(prep.nc), lr_n, dn / prep.nc)
+        eta_p = _eta_shift(prep.log_p0 - np.log(prep.nv), lr_p, dn / prep.nv)
+    e_qfl = prep.ef - shift * prep.kT + prep.kT * eta_n
+    h_qfl = prep.ef - prep.kT * eta_p
+    ec = prep.eg - shift * prep.kT                        # conduction band edge under light, from Ev
+    degenerate = ((e_qfl - ec) > -DEGENERATE_KT * prep.kT) | (h_qfl < DEGENERATE_KT * prep.kT)
     maj = np.maximum(prep.n0, prep.p0)
     d_eval = np.where(dn > 0, dn, _LOW_INJ * maj)
     r = prep.rates(d_eval)
@@ -166,7 +242,8 @@ def _state_flat(prep: PreparedRates, dn):
         "splitting_eV": e_qfl - h_qfl, "implied_voc_V": e_qfl - h_qfl,
         "tau_eff_s": taus[4], "tau_srh_s": taus[0], "tau_radiative_s": taus[1], "tau_auger_s": taus[2],
         "tau_surface_s": taus[3], "electron_qfl_eV": e_qfl, "hole_qfl_eV": h_qfl,
-        "injection_ratio": dn / maj, "limiting_code": np.argmax(np.stack(r), axis=0).astype(np.int8),
+        "injection_ratio": _exp_or_inf(ldn - np.maximum(prep.log_n0, prep.log_p0)), "limiting_code": np.argmax(np.stack(r), axis=0).astype(np.int8),
+        "degenerate": degenerate, "effective_gap_eV": ec,
     }
 
 
@@ -176,15 +253,21 @@ def _state_flat(prep: PreparedRates, dn):
 
 def _dn_at_splitting(prep: PreparedRates, v_over_kT):
     """Delta n [cm^-3] with n p = n_i,eff^2(n, p) exp(V/kT) (Boltzmann); fixed point for injection BGN."""
-    n0, p0 = prep.n0, prep.p0
-    s = n0 + p0
+    # dn^2 + (n0 + p0) dn - r = 0 with r = n0 p0 expm1(z), solved in log space so that a dark
+    # product below the float range (n0 p0 ~ e^-3000 at 4 K) still gives the right dn
+    ln_s = np.logaddexp(prep.log_n0, prep.log_p0)
     shift = 0.0
     for _ in range(3 if prep.inj_bgn else 1):
-        r = n0 * p0 * np.expm1(v_over_kT + shift)
-        dn = 2.0 * r / (s + np.sqrt(s * s + 4.0 * r))
+        z = np.asarray(v_over_kT + shift, dtype=float)
+        pos = z > 0
+        zz = np.where(pos, z, 1.0)
+        ln_r = prep.log_n0 + prep.log_p0 + zz + np.log(-np.expm1(-zz))
+        ln_dn = np.log(2.0) + ln_r - np.logaddexp(ln_s, 0.5 * np.logaddexp(2.0 * ln_s, np.log(4.0) + ln_r))
+        with np.errstate(over="ignore"):
+            dn = np.where(pos, np.exp(ln_dn), 0.0)
         if prep.inj_bgn:
-            shift = prep.ni2_shift(dn)
-    return np.maximum(dn, 0.0)
+            shift = prep.ni2_shift(dn, precise=False)
+    return dn
 
 
 def _j_rec_mA(prep, W, v):
@@ -224,7 +307,12 @@ class SteadyState:
     np_over_ni2 [-] and log10_np_over_ni2 [-]; splitting_eV, electron_qfl_eV, hole_qfl_eV
     (from Ev) [eV]; implied_voc_V [V]; implied_ff [-] (NaN at G = 0); tau_eff_s, tau_srh_s,
     tau_radiative_s, tau_auger_s, tau_surface_s [s] (inf: mechanism absent);
-    injection_ratio [-]; residual: |G - U| / G [-]; converged [bool]; limiting_mechanism [str].
+    injection_ratio [-]; residual: |G - U| / G [-]; converged [bool]; limiting_mechanism [str];
+    degenerate [bool]: a quasi-Fermi level within 3 kT of its band edge or inside the band
+    (Fermi-Dirac statistics then make a splitting above the gap possible); effective_gap_eV:
+    Ec - Ev under light, with the injection-dependent narrowing [eV].
+    At a point with converged = False every level, density and lifetime is NaN (the point
+    is outside what the models support, see `solve`).
     """
 
     delta_n_cm3: np.ndarray
@@ -248,6 +336,8 @@ class SteadyState:
     residual: np.ndarray
     converged: np.ndarray
     limiting_mechanism: np.ndarray
+    degenerate: np.ndarray
+    effective_gap_eV: np.ndarray
 
     def to_dict(self) -> dict:
         """The DESIGN.md ``steady_state`` keys (tau_s nested); inf/NaN -> None for scalars, NaN in arrays."""
@@ -264,6 +354,8 @@ class SteadyState:
             out[k] = v(getattr(self, k))
         lm = np.asarray(self.limiting_mechanism)
         out["limiting_mechanism"] = str(lm) if lm.ndim == 0 else lm
+        dg = np.asarray(self.degenerate, dtype=bool)
+        out["degenerate"] = bool(dg) if dg.ndim == 0 else dg
         return out
 
 
@@ -297,9 +389,12 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
     thickness_cm: W [cm]; with_ff: also compute implied_ff (else NaN) [-];
     chunk_size: points per chunk (bounds the working memory) [-].
 
-    Bracketed in ln(Delta n) (geometric expansion from G x low-injection lifetime), then
-    Illinois regula falsi on ln U - ln G; each point to |G - U| <= 1e-10 G, else flagged
-    converged = False (its best estimate is kept).  G = 0 gives Delta n = 0 exactly.
+    Bracketed in ln(Delta n), then Illinois regula falsi on ln U - ln G (see `_solve_flat`:
+    first with n_i,eff at its dark value, where U is monotonic, then from that root with
+    the injection-dependent narrowing); each point to |G - U| <= 1e-10 G.  A point that
+    misses it, or whose root lies above DN_MAX_CM3 (beyond the models' range), is flagged
+    converged = False and its levels, densities, lifetimes and FF are NaN (never a number
+    the models cannot support).  G = 0 gives Delta n = 0 exactly.
     """
     G = _check_inputs(generation_cm3_s, thickness_cm)
     shape = _shape(eq, G, thickness_cm)
@@ -318,14 +413,21 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
         st["generation_cm3_s"] = g
         st["implied_ff"] = np.full(idx.size, np.nan)
         if with_ff:
-            lit = np.flatnonzero(g > 0)
+            lit = np.flatnonzero((g > 0) & conv)
             if lit.size:
                 sub = prep.take(lit)
                 W = _thickness_flat(thickness_cm, shape, idx[lit])
                 jgen = q_C * W * g[lit] * 1e3
                 voc = st["log10_np_over_ni2"][lit] * np.log(10.0) * sub.kT
                 vmp, jmp = _mpp_flat(sub, W, jgen, voc)
-                st["implied_ff"][lit] = vmp * jmp / (voc * jgen)
+                with np.errstate(invalid="ignore", divide="ignore"):
+                    ff = vmp * jmp / (voc * jgen)
+                st["implied_ff"][lit] = np.where(voc > 0, ff, np.nan)
+        bad = ~conv
+        if bad.any():                    # outside the models: no number, only the flag
+            for k in _NAN_WHEN_UNCONVERGED:
+                st[k] = np.where(bad, np.nan, st[k])
+            st["degenerate"] = st["degenerate"] & conv
         for k, v in st.items():
             if k not in out:
                 out[k] = np.empty(size, dtype=v.dtype)
@@ -337,6 +439,12 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
     if shape == ():
         res = {k: v[()] for k, v in res.items()}
     return SteadyState(**{f.name: res[f.name] for f in fields(SteadyState)})
+
+
+_NAN_WHEN_UNCONVERGED = (
+    "delta_n_cm3", "delta_p_cm3", "n_cm3", "p_cm3", "np_over_ni2", "log10_np_over_ni2", "splitting_eV",
+    "implied_voc_V", "implied_ff", "tau_eff_s", "tau_srh_s", "tau_radiative_s", "tau_auger_s", "tau_surface_s",
+    "electron_qfl_eV", "hole_qfl_eV", "injection_ratio", "effective_gap_eV")
 
 
 def _thickness_flat(thickness_cm, shape, idx):

@@ -112,3 +112,20 @@ def test_bad_inputs():
     assert err.value.field == "absorber.temperature_K"
     with pytest.raises(InputError):                     # Klaassen's fit is for silicon only
         bgn_eV(materials.get("GaAs"), 300.0, 1e18, 0.0, model="klaassen1992")
+
+
+def test_schenk_accepts_complex_densities_for_the_complex_step():
+    # the complex step Im f(x + i h) / h is f'(x) to rounding (Squire & Trapp, SIAM Rev. 40, 110 (1998));
+    # it must match a central difference (f(x + d) - f(x - d)) / 2d, whose truncation error is
+    # ~ (d/x)^2 ~ 1e-8 here (analytic), on both sides of the ion-density cap (n + p below / above N_D)
+    from optogen.equilibrium import bgn_schenk1998
+    for n0, nd in ((1e16, 1e15), (1e14, 1e15)):
+        p0 = 1e10
+        h = 1e-30 * n0
+        cs = np.imag(bgn_schenk1998(300.0, nd, 0.0, n0 + 1j * h, p0)) / h
+        d = 1e-4 * n0
+        cd = (bgn_schenk1998(300.0, nd, 0.0, n0 + d, p0) - bgn_schenk1998(300.0, nd, 0.0, n0 - d, p0)) / (2 * d)
+        assert cs == pytest.approx(cd, rel=1e-6)
+        # the real part is the function itself (to rounding: complex sqrt/log may differ in the last ulp)
+        assert np.real(bgn_schenk1998(300.0, nd, 0.0, n0 + 1j * h, p0)) == pytest.approx(
+            bgn_schenk1998(300.0, nd, 0.0, n0, p0), rel=1e-14)

@@ -120,9 +120,15 @@ def test_neutrality_and_mass_action(nd, na, T, bgn):
     neg = eq.n0_cm3 + eq.ionised_acceptors_cm3
     pos = eq.p0_cm3 + eq.ionised_donors_cm3
     assert abs(neg - pos) <= 1e-10 * max(neg, pos)
-    # mass action with Fermi-Dirac statistics (analytic): n0 p0 = n_i,eff^2 [F(eta_c) e^-eta_c][F(eta_v) e^-eta_v]
     ec, ev = etas(eq)
     ratio = eq.n0_cm3 * eq.p0_cm3 / eq.ni_eff_cm3**2
+    if bgn == "klaassen1992":
+        # an apparent narrowing is defined with Boltzmann statistics (Klaassen, Slotboom & de Graaff
+        # 1992): the model's own mass action n0 p0 = n_i,eff^2 holds exactly at every doping (analytic)
+        assert eq.statistics == "boltzmann"
+        assert ratio == pytest.approx(1.0, rel=1e-10)
+        return
+    # mass action with Fermi-Dirac statistics (analytic): n0 p0 = n_i,eff^2 [F(eta_c) e^-eta_c][F(eta_v) e^-eta_v]
     fd_factor = fd_half(ec) * math.exp(-ec) * fd_half(ev) * math.exp(-ev)       # mpmath
     assert ratio == pytest.approx(fd_factor, rel=1e-9)
     # ... and n0 p0 = n_i,eff^2 in the non-degenerate range: 1 - F e^-eta <= e^eta / 2^(3/2) (analytic)
@@ -200,6 +206,27 @@ def test_no_nan_no_warning_4K_to_1000K():
                 zero = getattr(eq, lin) == 0
                 assert np.all(getattr(eq, ln)[zero] < math.log(5e-324))
             assert np.all(eq.n0_cm3 >= 0) and np.all(eq.p0_cm3 >= 0)
+
+
+@pytest.mark.parametrize("N", [8.4e18, 1e20])
+def test_dark_mass_action_each_narrowing_model_as_defined(N):
+    """n0 p0 = n_i,eff^2 in the statistics each narrowing model is defined with (issue 15).
+
+    klaassen1992 (apparent, Boltzmann; Klaassen, Slotboom & de Graaff 1992): n0 p0 / n_i,eff^2 = 1.
+    schenk1998 (real shift, Fermi-Dirac; Schenk 1998) and none: eta_c + eta_v = -Eg_eff/kT with
+    eta = F_1/2^-1(n/N) (analytic: Ec - E_F + E_F - Ev = Eg_eff), F_1/2 from mpmath.
+    """
+    T = 300.0
+    kT = K_EV * T
+    kl = equilibrium(SI, T, N, bgn_model="klaassen1992")
+    assert kl.n0_cm3 * kl.p0_cm3 / kl.ni_eff_cm3**2 == pytest.approx(1.0, rel=1e-10)
+    for model in ("schenk1998", "none"):
+        eq = equilibrium(SI, T, N, bgn_model=model)
+        assert eq.statistics == "fermi_dirac"
+        eta_c, eta_v = (float(mp.re(mp.findroot(lambda e, y=mp.mpf(float(y)): mp.log(mp.re(-mp.polylog(
+                            1.5, -mp.exp(e)))) - mp.log(y), mp.log(mp.mpf(float(y))))))
+                        for y in (eq.n0_cm3 / eq.nc_cm3, eq.p0_cm3 / eq.nv_cm3))
+        assert eta_c + eta_v == pytest.approx(-eq.effective_gap_eV / kT, rel=1e-10)
 
 
 def test_degenerate_1e20_phosphorus():

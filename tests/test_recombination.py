@@ -191,6 +191,30 @@ def test_schenk_injection_bgn_enters_ni_eff():
     assert r["radiative"] == pytest.approx(radiative_b_trupke2003(300.0) * (n * p - ni2), rel=1e-9)
 
 
+def test_excess_product_huge_shift_and_underflowed_dark_product():
+    # analytic: with n0 p0 = 0 (below the float range, e.g. Si at 4 K) the narrowing term n0 p0 expm1(shift)
+    # is 0 for any shift, so n p - n_i,eff^2 = dn^2 (no 0 x inf = NaN); a shift beyond the float range with
+    # n0 p0 > 0 gives -inf (a product the model cannot support), never NaN
+    assert excess_product_cm6(0.0, 0.0, 1e16, 1500.0) == 1e32
+    assert excess_product_cm6(1e10, 1e10, 1e16, 1500.0) == -math.inf
+
+
+def test_injection_shift_precise_in_low_injection():
+    # The injection narrowing shift (dEg(n0 + dn, p0 + dn) - dEg(n0, p0)) / kT must stay accurate where dn is
+    # far below the minority density (near-intrinsic Si at 965 K, n0 ~ p0 ~ 1.1e18 cm^-3): there it is
+    # linear in dn (Taylor, analytic: the second-order term is ~ dn / (n0 + p0) ~ 5e-11 relative at 1e8), so
+    # shift(dn) / dn is the same constant at 1e4 and 1e8 cm^-3 to 1e-9 (the plain difference of two narrowings
+    # of ~20 meV is off by ~3 % at 1e4: one ulp of dEg / kT against a shift of ~1e-15), and at
+    # dn = 1e-2 min(n0, p0) it agrees with the plain difference (no digits lost there) to 1e-10
+    eq = equilibrium(SI, 965.0, 0.0, 6e11, bgn_model="schenk1998")
+    prep = Recombination(bgn_model="schenk1998").prepare(SI, eq, W)
+    s = [float(prep.ni2_shift(np.array([d]))[0]) / d for d in (1e4, 1e8)]
+    assert s[0] == pytest.approx(s[1], rel=1e-9)
+    edge = 0.999e-2 * min(float(eq.n0_cm3), float(eq.p0_cm3))
+    plain = (prep._bgn(prep.n0 + edge, prep.p0 + edge) - prep.bgn0) / prep.kT
+    assert float(prep.ni2_shift(np.array([edge]))[0]) == pytest.approx(float(plain[0]), rel=1e-10)
+
+
 # --------------------------------------------------------------------------- inputs
 
 def test_table_and_errors():

@@ -217,3 +217,91 @@ def test_schenk_injection_bgn_consistent_outputs():
     assert ss.np_over_ni2 == pytest.approx(n * p / ni2 * np.exp(y0 / 2**1.5), rel=1e-6)
     assert np.exp(ss.splitting_eV / kT_eV(T)) == pytest.approx(n * p / ni2 * np.exp(y / 2**1.5), rel=1e-5)
     assert np.all(np.abs(G - _total_rate(rec, eq, ss.delta_n_cm3)) <= 1e-10 * G)
+
+
+# ------------------------------------------------------------------ issue 15: robustness, statistics, flags
+
+@pytest.mark.parametrize("T", [77.0, 300.0, 600.0])
+def test_undoped_si_schenk_converges_up_to_1e4_suns(T):
+    # issue 15: undoped Si with the injection-dependent Schenk narrowing did not converge above ~3 suns
+    # (the start G x tau_low-injection landed where the narrowed n p - n_i,eff^2 < 0).  Every point must
+    # meet |G - U| <= 1e-10 G (checked with the public rates), with dn rising with G (U increases with dn)
+    eq = equilibrium(SI, T, 0.0, 0.0, bgn_model="schenk1998")
+    rec = Recombination(bgn_model="schenk1998")
+    G = 2.5e19 * np.logspace(-6, 4, 21)     # 1e-6..1e4 suns; 1 sun ~ 40 mA/cm^2 in 100 um (common practice)
+    ss = solve(SI, eq, rec, G, 0.01)
+    assert np.all(ss.converged)
+    assert np.all(np.abs(G - _total_rate(rec, eq, ss.delta_n_cm3)) <= 1e-10 * G)
+    assert np.all(np.diff(ss.delta_n_cm3) > 0)
+    # the answer lies above the one with n_i,eff held at its dark value (in undoped Si the narrowing grows with
+    # the carriers and raises n_i,eff, so U at a given dn is lower; analytic) and well below the atomic density
+    # of Si, 5e22 cm^-3 (common practice)
+    plain = solve(SI, eq, Recombination(bgn_model="schenk1998", injection_bgn=False), G, 0.01)
+    assert np.all(ss.delta_n_cm3 >= plain.delta_n_cm3 * (1 - 1e-9)) and np.all(ss.delta_n_cm3 < 1e20)
+
+
+def test_klaassen_levels_use_boltzmann_statistics():
+    # Klaassen 1992 is an apparent narrowing defined with Boltzmann statistics (Klaassen, Slotboom &
+    # de Graaff 1992): with it the splitting is exactly kT ln(n p / n_i,eff^2) (analytic) even at 1e20 cm^-3
+    T = 300.0
+    eq = equilibrium(SI, T, [1e15, 8.4e18, 1e20], 0.0, bgn_model="klaassen1992")
+    rec = Recombination(bgn_model="klaassen1992", front_S_cm_s=10.0, rear_S_cm_s=10.0)
+    ss = solve(SI, eq, rec, 1e20, W)
+    assert np.all(ss.converged)
+    ln_ratio = np.log(ss.n_cm3) + np.log(ss.p_cm3) - 2 * np.log(eq.ni_eff_cm3)
+    assert ss.splitting_eV == pytest.approx(kT_eV(T) * ln_ratio, rel=1e-10)
+    dark = solve(SI, eq, rec, 0.0, W)
+    assert np.all(dark.np_over_ni2 == 1.0) and np.all(dark.splitting_eV == 0.0)
+    assert eq.n0_cm3 * eq.p0_cm3 == pytest.approx(eq.ni_eff_cm3**2, rel=1e-10)     # its own mass action
+
+
+def test_fermi_dirac_levels_and_degenerate_flag():
+    # Fermi-Dirac levels (schenk1998, none): E_Fn - E_c = kT F^-1(n/Nc), E_v - E_Fp = kT F^-1(p/Nv), with
+    # E_c lowered by the injection narrowing (analytic); F^-1 checked against mpmath in test_fermi_dirac.py.
+    # Degenerate (the 3 kT rule, common practice) when a level is within 3 kT of its band edge.
+    from optogen.equilibrium import bgn_eV, inverse_fermi_dirac_half
+    T = 300.0
+    eq = equilibrium(SI, T, 1e15, 0.0, bgn_model="schenk1998")
+    rec = Recombination(bgn_model="schenk1998")
+    G = np.array([1e18, 1e24, 1e28])
+    ss = solve(SI, eq, rec, G, 1e-4)
+    kT = kT_eV(T)
+    d_bgn = bgn_eV(SI, T, 1e15, 0.0, ss.n_cm3, ss.p_cm3, model="schenk1998") - eq.bgn_eV
+    ec = eq.effective_gap_eV - d_bgn
+    eta_n = inverse_fermi_dirac_half(ss.n_cm3 / eq.nc_cm3)
+    eta_p = inverse_fermi_dirac_half(ss.p_cm3 / eq.nv_cm3)
+    assert ss.splitting_eV == pytest.approx(ec + kT * (eta_n + eta_p), abs=1e-9)
+    assert ss.effective_gap_eV == pytest.approx(ec, abs=1e-12)
+    assert list(ss.degenerate) == list((eta_n > -3) | (eta_p > -3))
+    assert not ss.degenerate[0] and ss.degenerate[-1]
+    # a splitting above the gap only where degenerate (Fermi-Dirac: splitting - Eg = kT (eta_n + eta_p))
+    assert np.all(~(ss.splitting_eV > ss.effective_gap_eV) | ss.degenerate)
+
+
+def test_intrinsic_4K_no_warning_and_finite():
+    # at 4 K n0 = p0 underflow (n_i of Si ~ e^-1400 cm^-3); every output stays finite under light, and the
+    # injection ratio dn / max(n0, p0) is reported as infinite (null), not a division warning
+    eq = equilibrium(SI, 4.0, 0.0, 0.0)
+    ss = solve(SI, eq, Recombination(), np.array([0.0, 1e10, 1e20]), W)
+    assert np.all(ss.converged)
+    lit = slice(1, None)
+    for k in ("delta_n_cm3", "splitting_eV", "electron_qfl_eV", "hole_qfl_eV", "log10_np_over_ni2", "tau_eff_s"):
+        assert np.all(np.isfinite(getattr(ss, k)[lit])), k
+    assert np.all(np.isinf(ss.injection_ratio[lit]))
+    # below the gap without degeneracy (Nc(4 K) ~ 4e16 cm^-3, Sze & Ng scaling T^1.5)
+    assert ss.splitting_eV[1] < ss.effective_gap_eV[1]
+
+
+def test_root_beyond_the_models_is_flagged_not_a_number():
+    # a material with almost no recombination (only S = 1e-6 cm/s) would need dn = G W / (2 S) far above
+    # DN_MAX_CM3 = 1e22 cm^-3 (analytic): flagged converged = False, every level NaN (issue 15 NaN policy)
+    from optogen.steady_state import DN_MAX_CM3
+    eq = equilibrium(NO_BULK, 300.0, 1e15, 0.0, bgn_model="none")
+    rec = Recombination(front_S_cm_s=1e-6, rear_S_cm_s=1e-6, bgn_model="none", intrinsic="constant")
+    G = np.array([1e10, 1e20])
+    ss = solve(NO_BULK, eq, rec, G, W)
+    assert G[1] * W / 2e-6 > DN_MAX_CM3 > G[0] * W / 2e-6
+    assert ss.converged.tolist() == [True, False]
+    assert ss.delta_n_cm3[0] == pytest.approx(G[0] * W / 2e-6, rel=1e-9)
+    for k in ("delta_n_cm3", "splitting_eV", "implied_voc_V", "tau_eff_s", "np_over_ni2"):
+        assert np.isnan(getattr(ss, k)[1]), k

@@ -1,6 +1,10 @@
-"""The `optogen` command: run, check, materials, spectra.
+"""The `optogen` command: run, check, materials, spectra, schema.
 
-Bad input prints one line and exits with status 2, never a traceback.
+The error boundary: bad input (`InputError`, raised where the input is read or
+checked, with the field named) prints one line "optogen: error: ..." and exits
+with status 2.  Anything else is a bug in optogen: one line "optogen: internal
+error: ..." asking for a report, exit status 1, and the traceback only with
+``--debug`` (or the environment variable OPTOGEN_DEBUG=1).
 """
 from __future__ import annotations
 
@@ -8,6 +12,7 @@ import argparse
 import json
 import os
 import sys
+import traceback
 import warnings
 from pathlib import Path
 
@@ -15,6 +20,8 @@ from . import __version__
 from .errors import InputError
 
 EXIT_INPUT = 2
+EXIT_INTERNAL = 1
+REPORT_TO = "the optogen maintainers (issue tracker of the project)"
 
 
 class _Parser(argparse.ArgumentParser):
@@ -28,6 +35,8 @@ def _parser() -> argparse.ArgumentParser:
     p = _Parser(prog="optogen", description="Carriers in a semiconductor absorber, "
                                 "in the dark and under light.")
     p.add_argument("--version", action="version", version=f"optogen {__version__}")
+    p.add_argument("--debug", action="store_true",
+                   help="show the traceback of an internal error (also OPTOGEN_DEBUG=1)")
     sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
     r = sub.add_parser("run", help="run a scenario file and report the dark and illuminated states")
@@ -40,10 +49,13 @@ def _parser() -> argparse.ArgumentParser:
     r.add_argument("--workers", type=int, metavar="N", help="run the sweep on a local dask cluster of N workers")
     r.add_argument("--scheduler", metavar="ADDRESS", help="run the sweep on an existing dask.distributed scheduler")
     r.add_argument("--yes", action="store_true", help="run a sweep larger than the size limit")
+    for sp in (r,):
+        sp.add_argument("--debug", action="store_true", help=argparse.SUPPRESS)
 
     c = sub.add_parser("check", help="validate a scenario file without running it")
     c.add_argument("scenario")
     c.add_argument("--set", metavar="KEY=VALUE", action="append", default=[])
+    c.add_argument("--debug", action="store_true", help=argparse.SUPPRESS)
 
     m = sub.add_parser("materials", help="list the built-in materials, or show one with its sources")
     m.add_argument("name", nargs="?")
@@ -52,6 +64,9 @@ def _parser() -> argparse.ArgumentParser:
                    help="Cd fraction x for HgCdTe")
 
     sub.add_parser("spectra", help="list the light sources and standard spectra")
+
+    s = sub.add_parser("schema", help="print the scenario keys (or, with --json, a JSON Schema for editors)")
+    s.add_argument("--json", action="store_true", help="print the JSON Schema of a scenario file")
     return p
 
 
@@ -66,7 +81,17 @@ def _overrides(items):
     return out
 
 
+def _one_line(text) -> str:
+    return " ".join(str(text).split())
+
+
+def _debug_wanted(argv) -> bool:
+    return os.environ.get("OPTOGEN_DEBUG", "").strip().lower() in ("1", "true", "yes", "on") or (
+        "--debug" in (sys.argv[1:] if argv is None else list(map(str, argv))))
+
+
 def main(argv=None) -> int:
+    debug = _debug_wanted(argv)
     try:
         args = _parser().parse_args(argv)
     except SystemExit as exc:          # usage errors (one line, status 2), --help and --version (0)
@@ -77,14 +102,18 @@ def main(argv=None) -> int:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0
     except InputError as exc:
-        print(f"optogen: error: {exc}", file=sys.stderr)
-        return EXIT_INPUT
-    except (ValueError, OSError) as exc:
-        print(f"optogen: error: {' '.join(str(exc).split())}", file=sys.stderr)
+        print(f"optogen: error: {_one_line(exc)}", file=sys.stderr)
         return EXIT_INPUT
     except KeyboardInterrupt:
         print("optogen: interrupted; no partial files were left", file=sys.stderr)
         return 130
+    except Exception as exc:           # anything else is our bug, never the user's input
+        if debug:
+            traceback.print_exc(file=sys.stderr)
+        print(f"optogen: internal error: {type(exc).__name__}: {_one_line(exc)} (please report this to "
+              f"{REPORT_TO} with the scenario and the output of the same command with --debug)",
+              file=sys.stderr)
+        return EXIT_INTERNAL
 
 
 def _dispatch(args) -> int:
@@ -92,13 +121,17 @@ def _dispatch(args) -> int:
         return _materials(args)
     if args.command == "spectra":
         return _spectra()
+    if args.command == "schema":
+        return _schema(args)
     from .scenario import MAX_POINTS_WITHOUT_CONFIRMATION, load_scenario
     sc = load_scenario(Path(args.scenario), _overrides(args.set))
     if args.command == "check":
-        from .runner import build, swept_light_scaling
-        build(sc, swept_light_scaling(sc))
+        from .runner import check
+        check(sc)
         print(f"{args.scenario}: ok ({sc.n_points} point{'s' if sc.n_points != 1 else ''})")
         return 0
+    if args.workers is not None and not 1 <= args.workers <= 1024:
+        raise InputError("--workers", args.workers, "an integer from 1 to 1024")
     if sc.n_points > MAX_POINTS_WITHOUT_CONFIRMATION and not args.yes:
         raise InputError("sweep", f"{sc.n_points} points",
                          f"at most {MAX_POINTS_WITHOUT_CONFIRMATION} without --yes",
@@ -129,7 +162,8 @@ def _materials(args) -> int:
         return 0
     mat = materials.get(args.name, args.composition_x)
     from .errors import check_range
-    check_range("--temperature-K", args.temperature_K, 0.0, None, low_open=True, unit="K")
+    from .schema import T_MAX_K, T_MIN_K
+    check_range("--temperature-K", args.temperature_K, T_MIN_K, T_MAX_K, unit="K")
     rows = materials.describe(mat, args.temperature_K)
     print(f"{mat.name} at {args.temperature_K:g} K")
     w = max(len(r["field"]) for r in rows)
@@ -137,6 +171,17 @@ def _materials(args) -> int:
         val = r["value"]
         val = f"{val:.6g}" if isinstance(val, float) else str(val)
         print(f"  {r['field']:<{w}}  {val:>14} {r.get('unit', ''):<12} {r.get('source', '')}")
+    return 0
+
+
+def _schema(args) -> int:
+    from . import schema
+    if args.json:
+        print(json.dumps(schema.json_schema(), indent=2))
+        return 0
+    for path, key in schema.KEYS.items():
+        default = "" if key.default is None else f" (default {key.default})"
+        print(f"{path:<48} {key.allowed()}{default}{'; sweep: ' + key.sweep if key.sweep else ''}")
     return 0
 
 

@@ -1,8 +1,9 @@
 """Input errors that name the field, the value and what is allowed."""
 from __future__ import annotations
 
+import contextlib
 import difflib
-from typing import Iterable
+from typing import Iterable, Mapping
 
 import numpy as np
 
@@ -26,10 +27,17 @@ class InputError(ValueError):
 
 
 def _show(value) -> str:
-    arr = np.asarray(value) if not isinstance(value, (str, dict, list, tuple)) else None
-    if arr is not None and arr.ndim > 0 and arr.size > 3:
-        return f"array(shape={arr.shape}, min={np.nanmin(arr):.4g}, max={np.nanmax(arr):.4g})"
-    return repr(value)
+    """A short text of a value for a message (an array by its shape and range; long text cut)."""
+    if isinstance(value, np.ndarray) and value.ndim > 0 and value.size > 3:
+        if value.dtype.kind in "iuf":
+            finite = value[np.isfinite(value)] if value.dtype.kind == "f" else value
+            if finite.size:
+                return f"array(shape={value.shape}, min={finite.min():.4g}, max={finite.max():.4g})"
+        return f"array(shape={value.shape}, dtype={value.dtype})"
+    if isinstance(value, int) and not isinstance(value, bool) and value.bit_length() > 256:
+        return f"an integer of {int(value.bit_length() * 0.30103) + 1} digits"
+    text = repr(value)
+    return text if len(text) <= 200 else text[:160] + f"... ({len(text)} characters)"
 
 
 def did_you_mean(word: str, choices: Iterable[str]) -> str | None:
@@ -57,3 +65,21 @@ def check_range(field: str, value, low=None, high=None, *, low_open=False,
         shown = arr[bad].flat[0] if arr.ndim else float(arr)
         raise InputError(field, float(shown), f"must be {allowed}{(' ' + unit) if unit else ''}")
     return arr if arr.ndim else float(arr)
+
+
+@contextlib.contextmanager
+def relabel(names: Mapping[str, str]):
+    """Rename the field of an InputError raised inside the block: the one place where a core
+    function's own argument name (or a prefix such as "light.") becomes a scenario path.
+
+    ``with relabel({"light.": "background."}): light.blackbody(...)`` turns
+    ``light.temperature_K`` into ``background.temperature_K``; a key without a trailing
+    dot must match the whole field (``{"temperature_K": "absorber.temperature_K"}``).
+    """
+    try:
+        yield
+    except InputError as exc:
+        for old, new in names.items():
+            if (old.endswith(".") and exc.field.startswith(old)) or exc.field == old:
+                raise InputError(new + exc.field[len(old):], exc.value, exc.allowed, exc.hint) from None
+        raise

@@ -25,6 +25,7 @@ import numpy as np
 
 from ._dispatch import normalise
 from .constants import c_m_s, h_J_s, k_B_J_K
+from . import schema as _schema
 from .errors import InputError, check_range, did_you_mean
 
 SUN_W_m2 = 1000.0            #: irradiance of 1 sun [W m^-2] (common practice)
@@ -158,9 +159,11 @@ def read_columns(path, value_columns, field="light.path"):
     Returns (wavelength_nm [nm], values [unit of the column], column name).
     """
     try:
-        text = Path(path).read_text() if isinstance(path, (str, Path)) else path.read_text()
+        text = Path(path).read_text(encoding="utf-8") if isinstance(path, (str, Path)) else path.read_text()
     except OSError as err:
         raise InputError(field, str(path), "an existing, readable CSV file", str(err)) from None
+    except UnicodeDecodeError as err:
+        raise InputError(field, str(path), "a CSV file of UTF-8 text", f"byte {err.start}: {err.reason}") from None
 
     def fail(line_no, problem):
         raise InputError(field, str(path), f"line {line_no}: {problem}")
@@ -243,7 +246,45 @@ def blackbody_grid_nm(temperature_K, points=2000):
     return np.geomspace(lam_x1_nm / 50.0, lam_x1_nm / 0.01, points)
 
 
-def blackbody(temperature_K, field_of_view_deg=90.0, emissivity=1.0, wavelength_nm=None) -> Spectrum:
+F_NUMBER_MIN, F_NUMBER_MAX = 0.5, 100.0   #: accepted f-numbers: (0.5, 100] [-]
+
+
+def half_angle_from_f_number_deg(f_number, field="light.f_number"):
+    """Cone half-angle theta = arctan(1 / (2F)) of an f/F aperture [deg].
+
+    Then sin^2(theta) = 1 / (1 + 4 F^2), the usual cold-shield factor (A. Rogalski,
+    Infrared Detectors, 2nd ed., CRC 2011, ch. 3; from memory).  f_number in
+    (0.5, 100] [-]: f/0.5 and faster are outside the paraxial relation, above 100
+    the aperture is a pinhole.
+    """
+    F = check_range(field, f_number, F_NUMBER_MIN, F_NUMBER_MAX, low_open=True, unit="(f-number)")
+    return math.degrees(math.atan(1.0 / (2.0 * F)))
+
+
+def cold_filter_grid_nm(temperature_K, cuton_nm=None, cutoff_nm=None, points=2000, field="light"):
+    """Wavelength grid [nm] of a blackbody seen through an ideal band-pass cold filter.
+
+    The filter transmits 1 from cuton_nm to cutoff_nm and 0 outside (either edge
+    may be omitted: a long-pass or short-pass filter).  The grid runs
+    log-spaced from edge to edge (the default `blackbody_grid_nm` limits for a
+    missing edge), so the trapezoid integrates exactly the band.
+    temperature_K [K]; cuton_nm, cutoff_nm [nm]; points [-]; field: prefix of the
+    field names in errors.
+    """
+    full = blackbody_grid_nm(temperature_K, points)
+    lo = full[0] if cuton_nm is None else check_range(f"{field}.cuton_nm", cuton_nm, 0.0, low_open=True, unit="nm")
+    hi = full[-1] if cutoff_nm is None else check_range(f"{field}.cutoff_nm", cutoff_nm, 0.0, low_open=True,
+                                                        unit="nm")
+    if not hi > lo:
+        name = "cutoff_nm" if cutoff_nm is not None else "cuton_nm"
+        raise InputError(f"{field}.{name}", cutoff_nm if cutoff_nm is not None else cuton_nm,
+                         f"{field}.cutoff_nm above {field}.cuton_nm (a band from cuton_nm to cutoff_nm)",
+                         f"cuton_nm = {lo:g}, cutoff_nm = {hi:g}: is the band reversed?")
+    return np.geomspace(lo, hi, points)
+
+
+def blackbody(temperature_K, field_of_view_deg=90.0, emissivity=1.0, wavelength_nm=None, *,
+              f_number=None, cuton_nm=None, cutoff_nm=None) -> Spectrum:
     """Irradiance on a flat detector from a Lambertian (grey) emitter filling a cone.
 
     E_lambda = emissivity * pi * sin^2(theta) * B_lambda(T), theta = field-of-view half-angle;
@@ -253,15 +294,36 @@ def blackbody(temperature_K, field_of_view_deg=90.0, emissivity=1.0, wavelength_
     temperature_K: emitter temperature [K]
     field_of_view_deg: half-angle of the cone the emitter fills, (0, 90] [deg]
     emissivity: grey emissivity, [0, 1] [-]
-    wavelength_nm: grid [nm]; default `blackbody_grid_nm(temperature_K)`
+    wavelength_nm: grid [nm]; default `blackbody_grid_nm(temperature_K)`, or the filter band
+    f_number: the cone as an f/F aperture instead of field_of_view_deg
+        (`half_angle_from_f_number_deg`: sin^2(theta) = 1 / (1 + 4 F^2)) [-]
+    cuton_nm, cutoff_nm: an ideal cold filter passing only this band (`cold_filter_grid_nm`) [nm]
     """
     T = check_range("light.temperature_K", temperature_K, 0.0, None, low_open=True, unit="K")
-    fov = check_range("light.field_of_view_deg", field_of_view_deg, 0.0, 90.0, low_open=True, unit="deg")
+    if f_number is not None:
+        fov = half_angle_from_f_number_deg(f_number)
+    else:
+        fov = check_range("light.field_of_view_deg", field_of_view_deg, 0.0, 90.0, low_open=True, unit="deg")
     eps = check_range("light.emissivity", emissivity, 0.0, 1.0)
-    wl = blackbody_grid_nm(T) if wavelength_nm is None else _check_grid(wavelength_nm)
+    filtered = cuton_nm is not None or cutoff_nm is not None
+    if wavelength_nm is not None:
+        wl = _check_grid(wavelength_nm)
+    elif filtered:
+        wl = cold_filter_grid_nm(T, cuton_nm, cutoff_nm)
+    else:
+        wl = blackbody_grid_nm(T)
+    if filtered and wavelength_nm is not None:
+        lo = -np.inf if cuton_nm is None else cuton_nm
+        hi = np.inf if cutoff_nm is None else cutoff_nm
+        passed = (wl >= lo) & (wl <= hi)
+    else:
+        passed = np.ones(wl.shape, bool)
     view = math.pi * math.sin(math.radians(fov)) ** 2
-    return Spectrum(wl, eps * view * planck_W_m2_nm_sr(wl, T),
-                    f"blackbody {T:g} K, {fov:g} deg, emissivity {eps:g}")
+    label = f"blackbody {T:g} K, " + (f"f/{f_number:g}" if f_number is not None else f"{fov:g} deg")
+    label += f", emissivity {eps:g}"
+    if filtered:
+        label += f", filter {wl[0]:g}-{wl[-1]:g} nm" if wavelength_nm is None else ", filtered"
+    return Spectrum(wl, np.where(passed, eps * view * planck_W_m2_nm_sr(wl, T), 0.0), label)
 
 
 def _check_grid(wavelength_nm):
@@ -327,7 +389,7 @@ def led(peak_nm, fwhm_nm, power_W, spot_area_cm2=None, beam_diameter_mm=None) ->
 # Scaling and scenario tables
 # ---------------------------------------------------------------------------
 
-_SCALINGS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
+_SCALINGS = _schema.LIGHT_SCALINGS           # ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
 
 
 def scale(spectrum: Spectrum, suns=None, irradiance_W_m2=None, power_W=None, spot_area_cm2=None,
@@ -371,14 +433,8 @@ def scale(spectrum: Spectrum, suns=None, irradiance_W_m2=None, power_W=None, spo
 
 
 #: keys of a [light] table per source kind (besides `source` and the scalings)
-_SOURCE_KEYS = {
-    "standard": (),
-    "blackbody": ("temperature_K", "field_of_view_deg", "emissivity"),
-    "laser": ("wavelength_nm",),
-    "led": ("peak_nm", "fwhm_nm"),
-    "file": ("path",),
-}
-_SPOT_KEYS = ("spot_area_cm2", "beam_diameter_mm")
+_SOURCE_KEYS = _schema.LIGHT_SOURCE_KEYS      # declared once in optogen.schema
+_SPOT_KEYS = _schema.LIGHT_SPOT_KEYS
 _ALL_KEYS = sorted({"source", *_SCALINGS, *_SPOT_KEYS, *(k for v in _SOURCE_KEYS.values() for k in v)})
 
 

@@ -8,9 +8,7 @@ mA cm^-2, rates cm^-3 s^-1).
 """
 from __future__ import annotations
 
-import os
 import re
-import tempfile
 from pathlib import Path
 from typing import Mapping
 
@@ -159,13 +157,16 @@ def _log_axis(ax, axis: str = "y") -> None:
 
 
 def _one_dim(ds, what: str):
-    """The single swept dimension of a 1-D Dataset (size-1 dimensions are ignored)."""
-    ds = ds.squeeze(drop=False)
-    dims = [d for d in ds.dims if ds.sizes[d] > 1]
-    if len(dims) != 1:
-        raise InputError(what, dict(ds.sizes), "a Dataset with exactly one swept dimension of 2 or more points",
+    """The single swept dimension of a Dataset: the one with 2 or more points (other
+    dimensions of size 1 are squeezed), or, when every dimension has one point, the first
+    (a one-value sweep plots as a single point)."""
+    big = [d for d in ds.dims if ds.sizes[d] > 1]
+    if len(big) > 1 or not ds.dims:
+        raise InputError(what, dict(ds.sizes), "a Dataset with one swept dimension",
                          "use sweep_map for two dimensions")
-    return ds, dims[0]
+    dim = big[0] if big else next(iter(ds.dims))
+    others = [d for d in ds.dims if d != dim]
+    return (ds.squeeze(others, drop=False) if others else ds), dim
 
 
 def _x_setup(ax, ds, dim) -> np.ndarray:
@@ -377,7 +378,7 @@ def lifetime_curve(delta_n_cm3, tau: Mapping[str, np.ndarray], operating_dn=None
     if finite_eff is not None and np.isfinite(finite_eff).any():
         lo, hi = np.nanmin(finite_eff), np.nanmax(finite_eff)
         ax.set_ylim(lo / 5.0, hi * 300.0)
-    if operating_dn is not None and np.isfinite(operating_dn):
+    if operating_dn is not None and np.isfinite(operating_dn) and operating_dn > 0:
         ax.axvline(operating_dn, color="0.35", lw=1, ls=":")
         if finite_eff is not None:
             ok = np.isfinite(finite_eff)
@@ -528,11 +529,18 @@ def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intri
               (r"$E_\mathrm{Fn}$ (light)", efn, "C0", "-", 1.8), (r"$E_\mathrm{Fp}$ (light)", efp, "C3", "-", 1.8)]
     if intrinsic_level_eV is not None:
         levels.append((r"$E_\mathrm{i}$", float(np.ravel(intrinsic_level_eV)[0]), "0.55", ":", 1.2))
+    missing = [name for name, e, *_ in levels if not np.isfinite(e)]
+    levels = [lv for lv in levels if np.isfinite(lv[1])]       # a level without a value is named, not drawn
+    if not np.isfinite(eg):
+        eg = max([e for _, e, *_ in levels] + [1.0])
     energies = [e for _, e, *_ in levels]
     lo, hi = min(energies + [0.0]), max(energies + [eg])
-    span = hi - lo
+    span = max(hi - lo, 1e-3)
     fig = _figure(6.0, 4.8)
     ax = fig.subplots()
+    if missing:
+        ax.text(0.99, 0.01, "no value: " + ", ".join(missing), transform=ax.transAxes, ha="right", va="bottom",
+                fontsize=8, color="0.4")
     ax.axhspan(eg, hi + 0.25 * span, color="C0", alpha=0.08, lw=0)
     ax.axhspan(lo - 0.25 * span, 0.0, color="C3", alpha=0.08, lw=0)
     ax.text(0.03, eg + 0.03 * span, "conduction band", fontsize=8, color="0.3", va="bottom")
@@ -542,10 +550,11 @@ def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intri
         ax.plot([0.0, 0.62], [e, e], color=colour, ls=ls, lw=lw)
         ax.plot([0.62, 0.68], [e, ly], color=colour, lw=0.8)
         ax.text(0.69, ly, f"{name} = {e:.3f} eV", va="center", fontsize=9, color=colour if colour != "k" else "k")
-    ax.annotate("", xy=(0.40, efn), xytext=(0.40, efp),
-                arrowprops=dict(arrowstyle="<|-|>", color="C2", lw=1.6, shrinkA=0, shrinkB=0))
-    ax.text(0.42, 0.5 * (efn + efp), f"Δμ = {efn - efp:.3f} eV\n(splitting)", color="C2", va="center", fontsize=10,
-            bbox=dict(fc="white", ec="none", alpha=0.8, pad=1))
+    if np.isfinite(efn) and np.isfinite(efp):
+        ax.annotate("", xy=(0.40, efn), xytext=(0.40, efp),
+                    arrowprops=dict(arrowstyle="<|-|>", color="C2", lw=1.6, shrinkA=0, shrinkB=0))
+        ax.text(0.42, 0.5 * (efn + efp), f"Δμ = {efn - efp:.3f} eV\n(splitting)", color="C2", va="center",
+                fontsize=10, bbox=dict(fc="white", ec="none", alpha=0.8, pad=1))
     ax.set_xlim(0.0, 1.12)
     ax.set_ylim(lo - 0.18 * span, hi + 0.18 * span)
     ax.set_xticks([])
@@ -617,7 +626,9 @@ def detector_generation(ds, crossing=None) -> Figure:
     """Thermal against background/optical generation over the sweep, log axis.
 
     ds: 1-D xarray.Dataset with thermal_generation_cm3_s and any of
-    background_generation_cm3_s, optical_generation_cm3_s [cm^-3 s^-1];
+    background_generation_cm3_s, optical_generation_cm3_s [cm^-3 s^-1]; the
+    background-limited span is shaded from `background_limited` when present
+    (background photon noise above all other noise), else where G_bg > G_th;
     crossing: swept value (e.g. temperature [K]) where the background limit sets
     in, marked with a vertical line and label (None or NaN: not marked).
     Returns a Figure with one axes.
@@ -633,8 +644,12 @@ def detector_generation(ds, crossing=None) -> Figure:
     _log_axis(ax, "y")
     for var, label, colour, ls in present:
         ax.plot(x, _positive(ds[var].values), ls, color=colour, lw=2, label=label)
-    if "thermal_generation_cm3_s" in ds and "background_generation_cm3_s" in ds:
+    limited = None
+    if "background_limited" in ds:          # the run's own flag: background photon noise above the rest
+        limited = np.asarray(ds["background_limited"].values).astype(bool)
+    elif "thermal_generation_cm3_s" in ds and "background_generation_cm3_s" in ds:
         limited = np.asarray(ds["background_generation_cm3_s"].values) > np.asarray(ds["thermal_generation_cm3_s"].values)
+    if limited is not None:
         if limited.any():
             ax.fill_between(x, 0, 1, where=limited, transform=ax.get_xaxis_transform(), color="C1",
                             alpha=0.10, lw=0, step="mid", label="background-limited")
@@ -674,6 +689,144 @@ def detector_contrast(ds) -> Figure:
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best")
     ax.set_title("Illuminated against dark conductivity")
+    return fig
+
+
+def _is_temperature(dim: str) -> bool:
+    return dim == "temperature_K" or dim.endswith(".temperature_K") and dim.startswith("absorber")
+
+
+def _arrhenius_or_plain_x(ax, ds, dim) -> np.ndarray:
+    """x values for a detector sweep: 1000/T for an absorber-temperature sweep (kelvin on the top axis)."""
+    if not _is_temperature(dim):
+        return _x_setup(ax, ds, dim)
+    T = np.asarray(ds[dim].values, dtype=float)
+    ax.set_xlabel("1000 / T (K⁻¹)")
+    top = ax.secondary_xaxis("top", functions=(lambda u: 1000.0 / np.where(u == 0, np.nan, u),
+                                               lambda t: 1000.0 / np.where(t == 0, np.nan, t)))
+    top.set_xlabel("temperature (K)")
+    return 1000.0 / T
+
+
+def _detector_lines(ds, what, rows, ylabel, title, log=True, aux=()) -> Figure:
+    """One axes with a line per (variable, label, colour, style) row present in ds, against the swept key.
+
+    Rows whose values are all missing (or, on a log axis, all <= 0) are left out; `aux`
+    variables are drawn but do not set the y range (an estimate far below the rest).
+    """
+    ds, dim = _one_dim(ds, what)
+
+    def usable(var):
+        v = np.asarray(ds[var].values, float)
+        return np.isfinite(_positive(v) if log else v).any()
+    present = [r for r in rows if r[0] in ds and usable(r[0])]
+    if not present:
+        raise InputError(what, list(ds.data_vars), "a Dataset with " + " or ".join(r[0] for r in rows))
+    fig = _figure(6.6, 4.8)
+    ax = fig.subplots()
+    x = _arrhenius_or_plain_x(ax, ds, dim)
+    if log:
+        _log_axis(ax, "y")
+    limits = []
+    for var, label, colour, ls in present:
+        y = np.asarray(ds[var].values, float)
+        y = _positive(y) if log else y
+        ax.plot(x, y, ls, color=colour, lw=2, label=label)
+        if var not in aux:
+            limits.append(y[np.isfinite(y)])
+            _mark_missing(ax, x, y)
+    if log and limits and np.concatenate(limits).size:
+        lo, hi = np.min(np.concatenate(limits)), np.max(np.concatenate(limits))
+        ax.set_ylim(lo / 3.0, hi * 3.0)
+    ax.set_ylabel(ylabel)
+    ax.grid(True, which="major", alpha=0.3)
+    ax.legend(fontsize=8, loc="best", framealpha=0.85)
+    ax.set_title(title, fontsize=10, pad=34 if _is_temperature(dim) else 6)
+    return fig
+
+
+def detector_detectivity(ds) -> Figure:
+    """D* and the background limit D*_BLIP over a detector sweep, log y (1000/T axis for temperature).
+
+    ds: 1-D Dataset with detectivity_cm_Hz05_W and, when a background is set,
+    detectivity_blip_cm_Hz05_W [cm Hz^1/2 W^-1].  Returns a Figure with one axes.
+    """
+    fig = _detector_lines(ds, "plots.detector_detectivity",
+                          [("detectivity_cm_Hz05_W", "D*", "C0", "-o"),
+                           ("detectivity_blip_cm_Hz05_W", "D*_BLIP (background limit)", "C1", "--")],
+                          "specific detectivity D* (cm Hz½ W⁻¹)", "Detectivity against the background limit")
+    fig.axes[0].lines[0].set_markersize(3)
+    return fig
+
+
+def detector_responsivity(ds) -> Figure:
+    """Signal responsivity over a detector sweep (1000/T axis for temperature).  ds: responsivity_A_W [A/W]."""
+    ds1, _ = _one_dim(ds, "plots.detector_responsivity")
+    log = "responsivity_A_W" in ds1 and _spans_decades(_positive(ds1["responsivity_A_W"].values), 1.0)
+    return _detector_lines(ds, "plots.detector_responsivity", [("responsivity_A_W", "R = I_signal / P_signal",
+                                                               "C2", "-o")],
+                           "responsivity (A W⁻¹)", "Signal responsivity", log=log)
+
+
+def detector_nep(ds) -> Figure:
+    """Noise-equivalent power over a detector sweep, log y.  ds: noise_equivalent_power_W [W]."""
+    return _detector_lines(ds, "plots.detector_nep", [("noise_equivalent_power_W", "NEP", "C3", "-o")],
+                           "noise-equivalent power (W)", "Noise-equivalent power (at detector.bandwidth_Hz)")
+
+
+_NOISE_VARS = (("noise_total_A_Hz05", "total", "k", "-"),
+               ("noise_background_A_Hz05", "background photon noise", "C1", "--"),
+               ("noise_signal_A_Hz05", "signal photon noise", "C0", "-."),
+               ("noise_thermal_A_Hz05", "thermal (g-r / dark-current shot)", "C3", "-"),
+               ("noise_johnson_A_Hz05", "Johnson", "C4", ":"))
+
+
+def detector_noise(ds) -> Figure:
+    """Each noise current and the total over a detector sweep, log y.  ds: noise_*_A_Hz05 [A/Hz^1/2]."""
+    return _detector_lines(ds, "plots.detector_noise", _NOISE_VARS, "noise current (A Hz⁻½)", "Noise terms")
+
+
+_DARK_VARS = (("j0_thin_base_mA_cm2", "diffusion J0 (base)", "C0", "-"),
+              ("j0_depletion_mA_cm2", "depletion q n_i W / τ_g", "C3", "--"),
+              ("dark_current_density_mA_cm2", "dark current at the bias", "k", "-."),
+              ("tunnelling_estimate_mA_cm2", "tunnelling (estimate, not added)", "0.5", ":"))
+
+
+def detector_dark_current(ds) -> Figure:
+    """Dark-current components over a detector sweep, log y, 1000/T axis for temperature.
+
+    Photodiode: diffusion J0, depletion-region saturation current, the dark
+    current at the bias and the tunnelling estimate [mA/cm^2].  Photoconductor:
+    dark, signal and background currents [A].  On the 1000/T axis diffusion
+    falls with slope ~Eg, the depletion current with ~Eg/2.
+    """
+    if "j0_thin_base_mA_cm2" in ds:
+        return _detector_lines(ds, "plots.detector_dark_current", _DARK_VARS, "current density (mA cm⁻²)",
+                               "Dark-current components", aux=("tunnelling_estimate_mA_cm2",))
+    return _detector_lines(ds, "plots.detector_dark_current",
+                           [("dark_current_A", "dark (bar)", "k", "-"), ("signal_current_A", "signal", "C0", "-."),
+                            ("background_current_A", "background", "C1", "--")],
+                           "current (A)", "Dark, signal and background currents")
+
+
+def spectral_response(wavelength_nm, quantum_efficiency, responsivity_A_W) -> Figure:
+    """Quantum efficiency (left) and responsivity (right) against wavelength for a single point.
+
+    wavelength_nm [nm]; quantum_efficiency [-]; responsivity_A_W [A/W].  Returns a Figure.
+    """
+    wl_um = np.asarray(wavelength_nm, float) * 1e-3
+    fig = _figure(6.6, 4.4)
+    ax = fig.subplots()
+    ax.plot(wl_um, np.asarray(quantum_efficiency, float), color="C0", lw=2, label="quantum efficiency η")
+    ax.set_xlabel("wavelength (µm)")
+    ax.set_ylabel("quantum efficiency η", color="C0")
+    ax.set_ylim(0.0, 1.05)
+    ax2 = ax.twinx()
+    ax2.plot(wl_um, np.asarray(responsivity_A_W, float), color="C2", lw=1.6, ls="--", label="responsivity R(λ)")
+    ax2.set_ylabel("responsivity (A W⁻¹)", color="C2")
+    ax2.set_ylim(bottom=0.0)
+    ax.grid(True, alpha=0.3)
+    ax.set_title("Spectral quantum efficiency and responsivity", fontsize=10)
     return fig
 
 
@@ -753,15 +906,9 @@ def save_figure(fig: Figure, path, dpi: int = 130) -> Path:
     Returns the final path.  An interrupted write never leaves a partial file
     under the final name.
     """
+    from .report import atomic_path          # the one atomic writer (umask-respecting permissions)
     path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "wb") as handle:
+    with atomic_path(path) as tmp:
+        with open(tmp, "wb") as handle:
             fig.savefig(handle, format="png", dpi=dpi)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
     return path

@@ -1,31 +1,62 @@
 """Writing results to files: JSON, NetCDF, tidy CSV and PNG, each atomically.
 
 Every file is written under a temporary name in the target folder and then
-renamed, so an interrupted run never leaves a half-written file under the
-final name.
+renamed (`atomic_path`), with the permissions the umask gives a new file, so an
+interrupted run never leaves a half-written file under the final name.
+`write_all` goes further: it writes every file of a run into a hidden staging
+folder inside the target and moves them into place only when all are written,
+so a run either writes all its files or none.  A folder that cannot be created
+or written is the user's error (InputError naming it), not a crash.
 """
 from __future__ import annotations
 
 import contextlib
 import json
 import os
+import shutil
 import tempfile
 from pathlib import Path
 
 import numpy as np
 import xarray as xr
 
+from .errors import InputError
+
+
+def file_mode() -> int:
+    """The permission bits a new file gets under the current umask (0o666 & ~umask)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return 0o666 & ~mask
+
+
+def _folder_error(folder: Path, exc: OSError) -> InputError:
+    return InputError("--out", str(folder), "a folder that can be created and written",
+                      exc.strerror or str(exc))
+
 
 @contextlib.contextmanager
 def atomic_path(final: Path):
-    """Yield a temporary path next to `final`; rename it to `final` on success."""
+    """Yield a temporary path next to `final`; rename it to `final` on success.
+
+    The renamed file gets the permissions of a plainly created file (0o666 minus the
+    umask; the temporary file itself is private while it is written).  An OSError of the
+    folder (missing, read-only, full) is raised as InputError naming it.
+    """
     final = Path(final)
-    final.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{final.name}.", suffix=".part", dir=final.parent)
+    try:
+        final.parent.mkdir(parents=True, exist_ok=True)
+        fd, tmp = tempfile.mkstemp(prefix=f".{final.name}.", suffix=".part", dir=final.parent)
+    except OSError as exc:
+        raise _folder_error(final.parent, exc) from None
     os.close(fd)
     try:
         yield Path(tmp)
-        os.replace(tmp, final)
+        try:
+            os.chmod(tmp, file_mode())
+            os.replace(tmp, final)
+        except OSError as exc:
+            raise _folder_error(final.parent, exc) from None
     finally:
         if os.path.exists(tmp):
             os.unlink(tmp)
@@ -107,6 +138,8 @@ def cautions(res) -> list[str]:
     swept = {a.key: a.values for a in sc.sweep}
     if np.min(swept.get("absorber.temperature_K", sc.get("absorber.temperature_K", 300.0))) < 200:
         out.append(CAUTION_COLD)
+    if "tunnelling_may_dominate" in ds and np.any(ds["tunnelling_may_dominate"].values == True):  # noqa: E712
+        out.append(CAUTION_TUNNELLING)
     return out
 
 
@@ -204,12 +237,36 @@ def _point_summary(d) -> list[str]:
     return out
 
 
+_DETECTOR_HEADLINE = (
+    ("currents (A)", (("signal", "signal_current_A"), ("background", "background_current_A"),
+                      ("dark", "dark_current_A"))),
+    ("noise (A/Hz^1/2)", (("signal", "noise_signal_A_Hz05"), ("background", "noise_background_A_Hz05"),
+                          ("thermal", "noise_thermal_A_Hz05"), ("Johnson", "noise_johnson_A_Hz05"),
+                          ("total", "noise_total_A_Hz05"))),
+    ("detectivity (cm Hz^1/2/W)", (("D*", "detectivity_cm_Hz05_W"), ("D*_BLIP", "detectivity_blip_cm_Hz05_W"),
+                                   ("D*/D*_BLIP", "detectivity_over_blip"))),
+)
+CAUTION_TUNNELLING = ("Tunnelling: the band-to-band tunnelling estimate exceeds the dark current at this "
+                      "junction field (narrow gap, heavy doping or strong bias); the dark current, R0A and D* "
+                      "leave it out and are then too optimistic.")
+
+
 def _detector_summary(det) -> list[str]:
+    """The detector block: currents, noise terms and D* against D*_BLIP first, then every other key."""
     out = ["", f"  detector ({det['mode']}):"]
     from .plots import axis_label
-    rows = [(axis_label(k), v) for k, v in det.items() if k != "mode"]
-    for name, v in rows:
-        out.append(f"    {name:<42} {_f(v)}")
+    shown = {"mode"}
+    for title, items in _DETECTOR_HEADLINE:
+        parts = [f"{label} {_f(det[key])}" for label, key in items if key in det]
+        shown.update(key for _, key in items)
+        if parts:
+            out.append(f"    {title + ':':<28} " + ", ".join(parts))
+    out.append(f"    {'background-limited:':<28} {_f(det.get('background_limited'))} "
+               "(background photon noise above all other noise together)")
+    shown.add("background_limited")
+    for k, v in det.items():
+        if k not in shown:
+            out.append(f"    {axis_label(k):<42} {_f(v)}")
     return out
 
 
@@ -228,9 +285,10 @@ def _sweep_summary(res) -> list[str]:
         out += _point_table(ds, ["n0_cm3", "n_cm3", "p0_cm3", "p_cm3", "np_over_ni2", "implied_voc_V",
                                  "tau_eff_s"], "dark against illuminated")
         if "thermal_generation_cm3_s" in ds:
-            out += _point_table(ds, ["minority_ratio", "thermal_generation_cm3_s", "optical_generation_cm3_s",
-                                     "background_generation_cm3_s", "background_limited", "responsivity_A_W",
-                                     "detectivity_cm_Hz05_W"], "detector")
+            out += _point_table(ds, ["signal_current_A", "background_current_A", "dark_current_A",
+                                     "noise_total_A_Hz05", "responsivity_A_W", "detectivity_cm_Hz05_W",
+                                     "detectivity_blip_cm_Hz05_W", "detectivity_over_blip",
+                                     "background_limited"], "detector")
     return out
 
 
@@ -241,7 +299,10 @@ _SHORT = {"n0_cm3": "n0", "n_cm3": "n", "p0_cm3": "p0", "p_cm3": "p", "np_over_n
           "implied_voc_V": "iVoc (V)", "tau_eff_s": "tau_eff (s)", "minority_ratio": "minority x",
           "thermal_generation_cm3_s": "G_thermal", "optical_generation_cm3_s": "G_light",
           "background_generation_cm3_s": "G_backgr.", "background_limited": "bg-limited",
-          "responsivity_A_W": "R (A/W)", "detectivity_cm_Hz05_W": "D* (Jones)"}
+          "responsivity_A_W": "R (A/W)", "detectivity_cm_Hz05_W": "D* (Jones)",
+          "signal_current_A": "I_sig (A)", "background_current_A": "I_bg (A)", "dark_current_A": "I_dark (A)",
+          "noise_total_A_Hz05": "i_n (A/rtHz)", "detectivity_blip_cm_Hz05_W": "D*_BLIP",
+          "detectivity_over_blip": "D*/BLIP"}
 
 
 def _point_table(ds, names, title) -> list[str]:
@@ -264,9 +325,35 @@ def _point_table(ds, names, title) -> list[str]:
 # ---------------------------------------------------------------------------
 
 def write_all(res, outdir: Path) -> list[Path]:
-    """Write the full result into `outdir`; returns the paths written."""
-    from . import plots
+    """Write the full result into `outdir`: all files or none.  Returns the paths written.
+
+    Everything is written into a hidden staging folder inside `outdir` and moved into
+    place when complete; on any error the staging folder is removed and nothing under
+    a final name has changed.
+    """
     outdir = Path(outdir)
+    try:
+        outdir.mkdir(parents=True, exist_ok=True)
+        stage = Path(tempfile.mkdtemp(prefix=".optogen-", suffix=".part", dir=outdir))
+    except OSError as exc:
+        raise _folder_error(outdir, exc) from None
+    try:
+        staged = _write_files(res, stage)
+        mode = file_mode()
+        for path in staged:
+            os.chmod(path, mode)
+        for path in staged:
+            os.replace(path, outdir / path.name)
+    except OSError as exc:
+        raise _folder_error(outdir, exc) from None
+    finally:
+        shutil.rmtree(stage, ignore_errors=True)
+    return [outdir / p.name for p in staged]
+
+
+def _write_files(res, outdir: Path) -> list[Path]:
+    """Write every file of a result into `outdir` (the staging folder of `write_all`)."""
+    from . import plots
     ds = res.dataset
     written = [write_json(outdir / "result.json", res.to_dict()) if not res.is_sweep or ds["n0_cm3"].size <= 10_000
                else None,
@@ -274,7 +361,8 @@ def write_all(res, outdir: Path) -> list[Path]:
                write_csv(outdir / "result.csv", ds)]
     figs: list[tuple[str, object]] = []
     if res.is_sweep:
-        dims = list(ds.dims)
+        # a swept key with one value counts as a dimension only if nothing else is swept
+        dims = [d for d in ds.dims if ds.sizes[d] > 1] or list(ds.dims)[:1]
         if len(dims) == 1 and "implied_voc_V" in ds:
             figs.append(("sweep_lines.png", plots.sweep_lines(ds)))
         elif len(dims) == 2 and "np_over_ni2" in ds:
@@ -286,6 +374,12 @@ def write_all(res, outdir: Path) -> list[Path]:
                      ("detector_generation.png", plots.detector_generation(ds, crossing=crossing))]
             if "conductivity_contrast" in ds:
                 figs.append(("detector_contrast.png", plots.detector_contrast(ds)))
+            if "detectivity_cm_Hz05_W" in ds and np.isfinite(ds["detectivity_cm_Hz05_W"].values).any():
+                figs += [("detector_detectivity.png", plots.detector_detectivity(ds)),
+                         ("detector_responsivity.png", plots.detector_responsivity(ds)),
+                         ("detector_nep.png", plots.detector_nep(ds))]
+            figs += [("detector_noise.png", plots.detector_noise(ds)),
+                     ("detector_dark_current.png", plots.detector_dark_current(ds))]
     else:
         det = res.details
         curves = point_curves(res)
@@ -312,6 +406,10 @@ def write_all(res, outdir: Path) -> list[Path]:
             figs.append(("depth_profile.png", plots.depth_profile(
                 c["depth_cm"], c["delta_n_cm3"], c["generation_cm3_s"], c["electron_qfl_eV"], c["hole_qfl_eV"],
                 bandgap_eV=_first(eq.effective_gap_eV))))
+        if "spectral_response" in curves:
+            c = curves["spectral_response"]
+            figs.append(("spectral_response.png", plots.spectral_response(
+                c["wavelength_nm"], c["quantum_efficiency"], c["responsivity_A_W"])))
         if ss is not None:
             figs.append(("band_diagram.png", plots.band_diagram(
                 _first(eq.effective_gap_eV), _first(eq.fermi_level_eV),
@@ -327,7 +425,8 @@ def _first(a) -> float:
 
 
 def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
-    """Curves behind a single-point result: implied J-V, lifetime vs delta n, G(x)."""
+    """Curves behind a single-point result: implied J-V, lifetime vs delta n, G(x), and for a
+    detector the spectral quantum efficiency and responsivity."""
     det = res.details
     out: dict[str, dict[str, np.ndarray]] = {}
     g = det.get("generation")
@@ -340,6 +439,9 @@ def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
     if "lifetime_curve" in det:
         lc = det["lifetime_curve"]
         out["lifetime_curve"] = {k: np.ravel(v) for k, v in lc.items()}
+    spectral = _spectral_response_curve(res)
+    if spectral is not None:
+        out["spectral_response"] = spectral
     if "profile" in det:
         p = det["profile"]
         out["depth_profile"] = {"depth_cm": p["depth_cm"], "delta_n_cm3": np.ravel(p["delta_n_cm3"]),
@@ -347,3 +449,35 @@ def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
                                 "electron_qfl_eV": np.ravel(p["electron_qfl_eV"]),
                                 "hole_qfl_eV": np.ravel(p["hole_qfl_eV"])}
     return out
+
+
+#: wavelengths of the spectral-response curve [-]
+SPECTRAL_POINTS = 400
+
+
+def _spectral_response_curve(res) -> dict[str, np.ndarray] | None:
+    """Quantum efficiency and responsivity of a detector against wavelength (single point).
+
+    The absorptance of the run's optics (front reflectance, light path, thickness) at the run's
+    temperature, on SPECTRAL_POINTS log-spaced wavelengths from the shortest wavelength of the
+    optical data (or 0.2 x the cut-off for a parametric edge) to 1.3 x the gap cut-off hc/Eg;
+    R(lambda) = eta g q lambda / (h c) with the photoconductive gain g (1 for a photodiode).
+    """
+    from . import detector as det_mod
+    from .constants import hc_eV_nm
+    from .light import Spectrum
+    from .materials import shortest_wavelength_nm
+    from .runner import _csv, _generation
+    ds, setup = res.dataset, res.details.get("setup")
+    if setup is None or "detectivity_cm_Hz05_W" not in ds:
+        return None
+    T = float(np.ravel(ds["temperature_K"].values)[0]) if "temperature_K" in ds else float(
+        res.scenario.get("absorber.temperature_K", 300.0))
+    cut = hc_eV_nm / float(setup.material.bandgap_eV(T))
+    short = shortest_wavelength_nm(setup.material, T, page=res.scenario.get("absorber.optical_page"),
+                                   csv_path=_csv(res.scenario))
+    lo = short * 1.0001 if short > 0 else 0.2 * cut
+    wl = np.geomspace(lo, 1.3 * cut, SPECTRAL_POINTS)
+    g, _ = _generation(setup, Spectrum(wl, np.ones_like(wl), "flat probe"), np.array([T]))
+    gain = float(np.ravel(ds["photoconductive_gain"].values)[0]) if "photoconductive_gain" in ds else 1.0
+    return det_mod.spectral_response(g.wavelength_nm, np.ravel(np.asarray(g.absorptance)[0]), gain)

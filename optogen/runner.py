@@ -17,22 +17,27 @@ import dataclasses
 import datetime as _dt
 import itertools
 import math
+import warnings
 from dataclasses import dataclass, field
 from typing import Any, Mapping
 
 import numpy as np
 import xarray as xr
 
-from . import __version__
+from . import __version__, schema
 from .errors import InputError, check_range
 from .scenario import Scenario, unit_of
 
 LIGHT_SCALING_KEYS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
-FAST_KEYS = {"absorber.temperature_K", "absorber.donors_cm3", "absorber.acceptors_cm3",
-             "absorber.resistivity_ohm_cm", *(f"light.{k}" for k in LIGHT_SCALING_KEYS)}
+FAST_KEYS = set(schema.fast_keys())        # temperature, doping, resistivity and the light scalings
 #: resistivity is taken as the room-temperature value (ASTM F723 is at 23 C; we use 300 K)
 RESISTIVITY_REFERENCE_K = 300.0
 DEFAULT_CHUNK = 100_000
+#: depth-resolved chunks: points x (at most profile.mesh's 20001 nodes) stays below this [cells]
+MAX_PROFILE_CELLS = 20_000_000
+MAX_PROFILE_NODES = 20_001
+#: most dask workers a run may start
+MAX_WORKERS = 1024
 
 #: Dataset variable names where the JSON key alone would be unclear or clash
 RENAME = {("generation", "average_cm3_s"): "generation_average_cm3_s",
@@ -77,6 +82,8 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
         built at value 1 of that key and the sweep multiplies it [-]
     """
     from . import materials
+    from .scenario import validate
+    validate(sc.data)                 # a Scenario built by hand gets the same checks as a file
     ab = sc.section("absorber")
     if "custom" in ab:
         base = materials.get(ab["material"], ab.get("composition_x")) if "material" in ab else None
@@ -90,7 +97,7 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
     thickness_um = ab.get("thickness_um", 100.0 if "light" not in sc.data else None)
     if thickness_um is None:
         raise InputError("absorber.thickness_um", None, "a thickness > 0 um is needed under light")
-    check_range("absorber.thickness_um", thickness_um, 0.0, None, low_open=True, unit="um")
+    schema.check_value("absorber.thickness_um", thickness_um)
 
     spectrum = None
     if "light" in sc.data:
@@ -101,22 +108,68 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
                 table.pop(k, None)
             table[unit_scaling] = 1.0
         spectrum = light.source_from_table(table, sc.base_dir)
+        if unit_scaling is None:
+            _check_irradiance(sc, spectrum.irradiance_W_m2)
     background = None
     if "background" in sc.data:
         from . import light
         bg = sc.section("background")
+        if "f_number" in bg and "field_of_view_deg" in bg:
+            raise InputError("background.f_number", bg["f_number"],
+                             "either background.f_number or background.field_of_view_deg, not both",
+                             f"field_of_view_deg = {bg['field_of_view_deg']!r} is also given")
         try:
             background = light.blackbody(bg.get("temperature_K", 300.0), bg.get("field_of_view_deg", 90.0),
-                                         bg.get("emissivity", 1.0))
+                                         bg.get("emissivity", 1.0), f_number=bg.get("f_number"),
+                                         cuton_nm=bg.get("cuton_nm"), cutoff_nm=bg.get("cutoff_nm"))
         except InputError as exc:
             raise InputError(exc.field.replace("light.", "background.", 1), exc.value, exc.allowed,
                              exc.hint) from None
+        if "cuton_nm" in bg or "cutoff_nm" in bg:
+            _check_filter_band(sc, mat, background.wavelength_nm[0], background.wavelength_nm[-1])
     recomb = None
     if "light" in sc.data or "recombination" in sc.data or "background" in sc.data:
         from .recombination import Recombination
         recomb = Recombination.from_table(sc.section("recombination"))
     _validate_point_fields(sc)
     return Setup(sc, mat, float(thickness_um) * 1e-4, spectrum, background, recomb, sc.section("optics"))
+
+
+def _check_filter_band(sc: Scenario, material, lo_nm: float, hi_nm: float) -> None:
+    """InputError unless the cold-filter band [lo_nm, hi_nm] overlaps the absorber's response.
+
+    Response: from the shortest wavelength of the optical data to the gap
+    cut-off hc/Eg(T), at every temperature of the run (scenario value and swept values) [nm].
+    """
+    from .constants import hc_eV_nm
+    from .materials import shortest_wavelength_nm
+    temps = [np.atleast_1d(a.values) for a in sc.sweep if a.key == "absorber.temperature_K"]
+    T = np.concatenate(temps) if temps else np.array([float(sc.get("absorber.temperature_K", 300.0))])
+    T = T[np.isfinite(T) & (T > 0)]
+    if T.size == 0:
+        return
+    cut = float(np.max(hc_eV_nm / np.asarray(material.bandgap_eV(T), dtype=float)))
+    short = shortest_wavelength_nm(material, T, page=sc.get("absorber.optical_page"), csv_path=_csv(sc))
+    if lo_nm >= cut:
+        raise InputError("background.cuton_nm", float(lo_nm),
+                         f"below the absorber's cut-off wavelength {cut:.5g} nm (hc/Eg over the run's temperatures)",
+                         "the filter band lies entirely beyond the material's response")
+    if hi_nm <= short:
+        raise InputError("background.cutoff_nm", float(hi_nm),
+                         f"above {short:.5g} nm, the shortest wavelength of the absorber's optical data",
+                         "the filter band lies entirely outside the material's response")
+
+
+def check(sc: Scenario) -> Setup:
+    """Everything `optogen check` can check without the physics: the schema (kinds, ranges,
+    rules, every swept value), the model names, the material, light, background, recombination
+    and detector records, and the light ceiling at the brightest swept value."""
+    unit = swept_light_scaling(sc)
+    setup = build(sc, unit)
+    if unit is not None and setup.spectrum is not None:
+        top = max(float(np.max(a.values)) for a in sc.sweep if a.key == f"light.{unit}")
+        _check_irradiance(sc, setup.spectrum.irradiance_W_m2 * top)
+    return setup
 
 
 def swept_light_scaling(sc: Scenario) -> str | None:
@@ -128,29 +181,41 @@ def swept_light_scaling(sc: Scenario) -> str | None:
 
 
 def _validate_point_fields(sc: Scenario) -> None:
-    """Checks that `optogen check` must make without running (values used later in the run)."""
-    ab = sc.section("absorber")
-    check_range("absorber.temperature_K", ab.get("temperature_K", 300.0), 0.0, None, low_open=True, unit="K")
-    for key in ("donors_cm3", "acceptors_cm3"):
-        if key in ab:
-            check_range(f"absorber.{key}", ab[key], 0.0, None, unit="cm^-3")
-    if "resistivity_ohm_cm" in ab:
-        check_range("absorber.resistivity_ohm_cm", ab["resistivity_ohm_cm"], 0.0, None, low_open=True,
-                    unit="ohm cm")
-    plane = str(sc.get("solver.voc_plane", "front")).lower()
-    if plane not in VOC_PLANES:
-        raise InputError("solver.voc_plane", plane, "front or rear")
-    for key, low in (("solver.chunk_size", 1), ("solver.nodes", 3)):
-        v = sc.get(key)
-        if v is not None and (isinstance(v, bool) or not isinstance(v, int) or v < low):
-            raise InputError(key, v, f"an integer >= {low}")
-    for key in ("solver.depth_resolved", "absorber.incomplete_ionisation"):
-        v = sc.get(key)
-        if v is not None and not isinstance(v, bool):
-            raise InputError(key, v, "true or false")
+    """Checks that `optogen check` must make without running: model names against the core's
+    tables (the schema checked kinds and ranges) and the [detector] record."""
+    schema.check_models(sc.data)
     if "detector" in sc.data:
         from .detector import detector_from_table
         detector_from_table(sc.section("detector"))
+
+
+def _scaling_key(sc: Scenario) -> str:
+    """The dotted key that sets the light level (for messages)."""
+    table = sc.data.get("light") or {}
+    swept = [a.key for a in sc.sweep if a.key.startswith("light.") and a.key in FAST_KEYS]
+    given = [f"light.{k}" for k in LIGHT_SCALING_KEYS if k in table]
+    return (swept or given or ["light.source"])[0]
+
+
+def _check_irradiance(sc: Scenario, irradiance_W_m2) -> None:
+    """Incident irradiance at most schema.IRRADIANCE_MAX_W_m2 (1e4 suns), whatever sets it."""
+    irr = np.asarray(irradiance_W_m2, dtype=float)
+    bad = ~(irr <= schema.IRRADIANCE_MAX_W_m2)
+    if np.any(bad):
+        key = _scaling_key(sc)
+        raise InputError(key, sc.get(key),
+                         f"a light level of at most {schema.IRRADIANCE_MAX_W_m2:g} W m-2 incident "
+                         f"({schema.SUNS_MAX:g} suns, the enforced domain)",
+                         f"this source gives {float(np.max(np.where(bad, irr, -np.inf))):.4g} W m-2")
+
+
+def _check_doping_sum(nd, na, field: str) -> None:
+    total = np.asarray(nd, dtype=float) + np.asarray(na, dtype=float)
+    bad = ~(total <= schema.DOPING_MAX_cm3)
+    if np.any(bad):
+        raise InputError(field, float(np.max(np.where(bad, total, -np.inf))),
+                         f"a total dopant density N_D + N_A <= {schema.DOPING_MAX_cm3:g} cm-3 "
+                         "(the enforced doping domain)")
 
 
 def _doping(setup: Setup, values: Mapping[str, np.ndarray]):
@@ -164,6 +229,7 @@ def _doping(setup: Setup, values: Mapping[str, np.ndarray]):
         split = (lambda N: (N, 0.0 * N)) if ab["dopant"] == "n" else (lambda N: (0.0 * N, N))
         if ab.get("incomplete_ionisation", True):
             N = _match_resistivity(setup, rho, N, split)
+        _check_doping_sum(N, 0.0, "absorber.resistivity_ohm_cm")
         return split(N)
     nd = values.get("absorber.donors_cm3", ab.get("donors_cm3", 0.0))
     na = values.get("absorber.acceptors_cm3", ab.get("acceptors_cm3", 0.0))
@@ -229,9 +295,12 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
     ab = sc.section("absorber")
     ones = np.ones(n)
     T = ones * np.asarray(values.get("absorber.temperature_K", ab.get("temperature_K", 300.0)), dtype=float)
-    check_range("absorber.temperature_K", T, 0.0, None, low_open=True, unit="K")
+    for key in values:                       # swept fast values (checked at load; again for the Python API)
+        check_range(key, values[key], schema.KEYS[key].low, schema.KEYS[key].high, unit=schema.KEYS[key].unit)
+    check_range("absorber.temperature_K", T, schema.T_MIN_K, schema.T_MAX_K, unit="K")
     nd, na = _doping(setup, values)
     nd, na = ones * nd, ones * na
+    _check_doping_sum(nd, na, "absorber.donors_cm3" if "absorber.donors_cm3" in values else "absorber.acceptors_cm3")
     rec = setup.recombination
     eq = equilibrium(setup.material, T, nd, na, **_equilibrium_kwargs(setup))
     out: dict[str, dict[str, Any]] = {"equilibrium": _block(eq.to_dict(), n)}
@@ -242,7 +311,8 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
         for k in LIGHT_SCALING_KEYS:
             if f"light.{k}" in values:
                 scale = ones * np.asarray(values[f"light.{k}"], dtype=float)
-                check_range(f"light.{k}", scale, 0.0, None)
+                check_range(f"light.{k}", scale, 0.0, schema.KEYS[f"light.{k}"].high)
+        _check_irradiance(sc, setup.spectrum.irradiance_W_m2 * scale)
         g, inv = _generation(setup, setup.spectrum, T)
         gd = _block(g.to_dict(), len(np.atleast_1d(g.average_cm3_s)))
         gen = {k: np.asarray(v)[inv] * (scale if k in ("average_cm3_s", "photocurrent_mA_cm2") else 1.0)
@@ -261,15 +331,38 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
         out["generation"]["background_average_cm3_s"] = bg
     elif "generation" in out:
         out["generation"]["background_average_cm3_s"] = np.full(n, np.nan)
+    if setup.spectrum is not None:
+        _warn_unabsorbed(setup, T, out["generation"], out["light"])
     if rec is not None:
-        from .steady_state import solve
+        from .steady_state import DN_MAX_CM3, solve
         ss = solve(setup.material, eq, rec, G, setup.thickness_cm)
+        notes = []
+        if np.any(~np.asarray(ss.converged)):
+            notes.append(f"{int(np.sum(~np.asarray(ss.converged)))} operating point(s) did not converge (no root of "
+                         f"G = U with 1e-304 < delta n < {DN_MAX_CM3:.0e} cm-3, the range the models support)")
+        if setup.spectrum is not None:
+            frac = _inverted_fraction(setup, g, inv, np.ravel(ss.splitting_eV))
+            inverted = np.asarray(ss.converged) & (frac > INVERSION_LIMIT)
+            if np.any(inverted):
+                ss = _invalidate(ss, inverted)
+                notes.append(f"{int(inverted.sum())} operating point(s) are outside the model: more than "
+                             f"{INVERSION_LIMIT:.0%} of the absorbed photons (up to {float(frac.max()):.0%}) have an "
+                             "energy below the quasi-Fermi-level splitting, where the absorber would amplify or "
+                             "be transparent rather than absorb (population inversion, or band filling in "
+                             "degenerate material; the absorption model has neither)")
         out["steady_state"] = _block(ss.to_dict(), n)
         extra["steady_state"] = ss
-        unconverged = ~np.asarray(ss.converged)
         out["steady_state"]["converged"] = np.asarray(ss.converged) * ones
-        if np.any(unconverged):
-            extra["warnings"] = [f"{int(unconverged.sum())} operating point(s) did not converge; they are flagged"]
+        out["steady_state"]["degenerate"] = np.asarray(ss.degenerate, dtype=bool) * np.ones(n, bool)
+        if notes:
+            extra["warnings"] = ["; ".join(notes) + "; such points are flagged converged = false (did not "
+                                 "converge / outside the model) and their levels are null"]
+        above = np.asarray(ss.splitting_eV > ss.effective_gap_eV)
+        if np.any(above):
+            warnings.warn(DegenerateWarning(
+                f"{int(above.sum())} operating point(s) have a quasi-Fermi-level splitting above the band gap: "
+                "degenerate carriers (a quasi-Fermi level inside a band), physical only with the Fermi-Dirac "
+                "statistics used for the levels; flagged degenerate = true"), stacklevel=2)
         out["steady_state"]["photoconductance_S"] = _photoconductance(setup, eq, ss, T, nd, na)
         if sc.get("solver.depth_resolved", False) and setup.spectrum is not None:
             prof, extra["profile"] = _depth_resolved(setup, eq, ss, T, nd, na, scale)
@@ -281,6 +374,78 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
     if details:
         out["_details"] = extra
     return out
+
+
+#: largest fraction of the absorbed photons allowed below the splitting [-] (our choice:
+#: beyond it the linear absorption that gives G no longer describes the point)
+INVERSION_LIMIT = 0.01
+
+
+def _inverted_fraction(setup: Setup, g, inv, splitting_eV):
+    """Fraction of the absorbed [light] photons with h nu <= the splitting, per point [-].
+
+    Such photons see net gain instead of absorption once the quasi-Fermi levels are
+    split by more than their energy (Bernard & Duraffourg, Phys. Status Solidi 1, 699
+    (1961), from memory); the generation model, linear absorption, is then wrong for them.
+    """
+    from .constants import hc_eV_nm
+    from .generation import trapezoid_weights
+    wl = np.asarray(g.wavelength_nm, dtype=float)
+    absorbed = np.reshape(g.absorbed_photon_flux_cm2_s_nm, (-1, wl.size)) * trapezoid_weights(wl)
+    e_asc = (hc_eV_nm / wl)[::-1]                             # photon energies, rising [eV]
+    cum = np.cumsum(absorbed[:, ::-1], axis=1)
+    total = cum[:, -1]
+    k = np.searchsorted(e_asc, np.nan_to_num(splitting_eV, nan=-np.inf), side="right")
+    rows = np.asarray(inv).reshape(-1)
+    below = np.where(k > 0, cum[rows, np.maximum(k - 1, 0)], 0.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(total[rows] > 0, below / np.where(total[rows] > 0, total[rows], 1.0), 0.0)
+
+
+def _invalidate(ss, bad):
+    """The steady state with the points `bad` flagged converged = False and their levels NaN."""
+    from .steady_state import _NAN_WHEN_UNCONVERGED
+    shape = np.shape(ss.converged)
+    bad = np.reshape(bad, shape)
+    changes = {k: np.where(bad, np.nan, getattr(ss, k)) for k in _NAN_WHEN_UNCONVERGED}
+    changes["converged"] = np.asarray(ss.converged) & ~bad
+    changes["degenerate"] = np.asarray(ss.degenerate) & ~bad
+    if shape == ():
+        changes = {k: v[()] for k, v in changes.items()}
+    return dataclasses.replace(ss, **changes)
+
+
+class DegenerateWarning(UserWarning):
+    """A splitting above the band gap: degenerate carriers (Fermi-Dirac statistics)."""
+
+
+class PhysicsNoteWarning(UserWarning):
+    """A quantity is null because it does not apply (light below the gap, no mobilities, ...)."""
+
+
+def _warn_unabsorbed(setup: Setup, T, gen, light) -> None:
+    """Warn where incident light is not absorbed at all, naming the light against the cut-off wavelength."""
+    from .constants import hc_eV_nm
+    none = (np.asarray(gen["photocurrent_mA_cm2"]) <= 0) & (np.asarray(light["irradiance_W_m2"]) > 0)
+    spec = setup.spectrum
+    lit = spec.irradiance_W_m2_nm > 0
+    if not np.any(none) or not np.any(lit):
+        return
+    Tn = np.asarray(T, dtype=float)[none]
+    eg = np.asarray(setup.material.bandgap_eV(Tn), dtype=float)
+    cut = hc_eV_nm / eg                           # cut-off wavelength hc/Eg(T) [nm]
+    lo, hi = float(spec.wavelength_nm[lit].min()), float(spec.wavelength_nm[lit].max())
+    light = f"{lo:.6g} nm" if hi - lo < 0.1 else f"{lo:.6g}-{hi:.6g} nm"
+    if lo > float(cut.max()):
+        why = (f"the light ({light}) lies below the band gap of {setup.material.name}: longer than the cut-off "
+               f"wavelength hc/Eg = {float(cut.min()):.5g}" + (f"-{float(cut.max()):.5g}" if np.ptp(cut) > 0.05 else "")
+               + f" nm (Eg = {float(eg.max()):.4g} eV at {float(Tn.min()):g} K)")
+    else:
+        why = f"none of the light ({light}) is absorbed in {setup.material.name}"
+    warnings.warn(PhysicsNoteWarning(
+        f"{why}; nothing is absorbed at {int(none.sum())} point(s): no generation, so the absorber stays in its "
+        "dark state there (splitting 0 V) and the implied FF, the implied J-V and the efficiency do not apply "
+        "(null)"), stacklevel=3)
 
 
 VOC_PLANES = {"front": 0, "rear": -1}
@@ -335,8 +500,9 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
                            page=sc.get("absorber.optical_page"), csv_path=_csv(sc))
     alpha = np.ravel(oc.alpha_cm1)
     absorbed = (alpha > 0) & (1.0 / np.where(alpha > 0, alpha, 1.0) < W)
-    L = float(np.min(np.sqrt(np.ravel(d_amb(np.ravel(ss.delta_n_cm3)[:, None]))[: T.size]
-                             * np.ravel(ss.tau_eff_s))))
+    with np.errstate(invalid="ignore"):          # NaN at unconverged points: ignored here
+        Ls = np.sqrt(np.ravel(d_amb(np.ravel(ss.delta_n_cm3)[:, None]))[: T.size] * np.ravel(ss.tau_eff_s))
+    L = float(np.nanmin(Ls)) if np.any(np.isfinite(Ls)) else np.nan
     lengths = np.append(1.0 / alpha[absorbed], L if np.isfinite(L) else W)
     wl = np.append(spec.wavelength_nm[carried][absorbed], np.nan)
     x = pr.mesh(W, int(sc.get("solver.nodes", 200)), lengths, wavelength_nm=wl)
@@ -365,6 +531,7 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
     steady.update({"implied_ff": np.full(T.size, np.nan), "tau_eff_s": tau_eff,
                    **{f"tau_s.{k}": v for k, v in taus.items()},
                    "limiting_mechanism": names[np.argmax(np.stack(list(losses.values())), axis=0)],
+                   "degenerate": np.asarray(st["degenerate"], dtype=bool),
                    "converged": (np.asarray(sol.converged) & np.asarray(ss.converged)) * 1.0})
     uni_voc = np.ravel(ss.implied_voc_V)
     profile_block = {
@@ -384,22 +551,61 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
 
 
 def _mobilities(setup, T, nd, na, n, p):
+    """(mu_e, mu_h) [cm^2/Vs]; NaN where n or p is NaN (an unconverged point).
+
+    A material without mobilities for its model raises one InputError naming the
+    missing `absorber.custom.mobility_*` field and what needs it (see `has_mobilities`).
+    """
     from .transport import mobility_cm2_Vs
-    return mobility_cm2_Vs(setup.material, T, nd, na, n, p)
+    missing = _missing_mobility(setup.material)
+    if missing:
+        raise InputError(f"absorber.custom.{missing}", None,
+                         "Caughey-Thomas parameters {mu_min_cm2_Vs, mu_max_cm2_Vs, n_ref_cm3, alpha} for "
+                         f"{setup.material.name}: a resistivity input, the [detector] figures and depth-resolved "
+                         "runs need carrier mobilities", "without them the rest runs and photoconductance_S is null")
+    n, p = np.asarray(n, dtype=float), np.asarray(p, dtype=float)
+    bad = np.isnan(n) | np.isnan(p)
+    if not np.any(bad):
+        return mobility_cm2_Vs(setup.material, T, nd, na, n, p)
+    mu_e, mu_h = mobility_cm2_Vs(setup.material, T, nd, na, np.where(bad, 0.0, n), np.where(bad, 0.0, p))
+    return np.where(bad, np.nan, mu_e), np.where(bad, np.nan, mu_h)
+
+
+def _missing_mobility(material) -> str | None:
+    """Name of the missing Caughey-Thomas record ("mobility_e"/"mobility_h") when the model needs it."""
+    from ._dispatch import pick
+    from .transport import _ALIASES, MOBILITY_MODELS
+    if pick("absorber.mobility_model", material.mobility_model, MOBILITY_MODELS, _ALIASES) \
+            is not MOBILITY_MODELS["caughey_thomas"]:
+        return None
+    for k in ("mobility_e", "mobility_h"):
+        if getattr(material, k, None) is None:
+            return k
+    return None
 
 
 def _photoconductance(setup, eq, ss, T, nd, na):
-    """Photoconductance Delta sigma W [S] (sheet), with injection-dependent mobilities."""
+    """Photoconductance Delta sigma W [S] (sheet), with injection-dependent mobilities.
+
+    Null (NaN), with a warning, for a material without mobilities; NaN at unconverged points.
+    """
     from .transport import conductivity_S_cm
     n0, p0 = np.ravel(eq.n0_cm3), np.ravel(eq.p0_cm3)
     n, p = np.ravel(ss.n_cm3), np.ravel(ss.p_cm3)
+    missing = _missing_mobility(setup.material)
+    if missing:
+        if np.any(n > n0):
+            warnings.warn(PhysicsNoteWarning(
+                f"photoconductance_S is null: {setup.material.name} has no carrier mobilities "
+                f"(absorber.custom.{missing} not given)"), stacklevel=3)
+        return np.full(n.shape, np.nan)
     sigma0 = conductivity_S_cm(n0, p0, *_mobilities(setup, T, nd, na, n0, p0))
     sigma = conductivity_S_cm(n, p, *_mobilities(setup, T, nd, na, n, p))
     return (sigma - sigma0) * setup.thickness_cm
 
 
 def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
-    """The `detector` JSON block: dark against illuminated, gain, responsivity, D*, background."""
+    """The `detector` JSON block: signal, background and dark currents, noise terms, D*, D*_BLIP."""
     from . import detector as det
     from .steady_state import solve
     d = det.detector_from_table(setup.scenario.section("detector"))
@@ -415,8 +621,9 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
     if d.mode == "photoconductor":
         mu_dark = _mobilities(setup, T, nd, na, n0, p0)
         mu_light = _mobilities(setup, T, nd, na, np.ravel(ss.n_cm3), np.ravel(ss.p_cm3))
-        block = det.photoconductor_figures(d, setup.thickness_cm, n0, p0, np.ravel(ss.n_cm3), np.ravel(ss.p_cm3),
-                                           mu_dark, mu_light, np.ravel(ss.tau_eff_s), tau_dark, g_opt, g_bg, irr)
+        block = det.photoconductor_figures(d, setup.thickness_cm, T, n0, p0, np.ravel(ss.n_cm3),
+                                           np.ravel(ss.p_cm3), mu_dark, mu_light, np.ravel(ss.tau_eff_s),
+                                           tau_dark, g_opt, g_bg, irr)
     else:
         from .transport import diffusivity_cm2_s
         mu_e, mu_h = _mobilities(setup, T, nd, na, n0, p0)
@@ -424,7 +631,12 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
         rear_S = _rear_S_cm_s(d, rec, setup.material, T, eq)
         block = det.photodiode_figures(d, setup.thickness_cm, T, np.ravel(eq.ni_eff_cm3), n0, p0,
                                        np.ravel(ss.n_cm3), np.ravel(ss.p_cm3), D_min, tau_dark, rear_S,
-                                       gen.get("photocurrent_mA_cm2", np.zeros(n)), g_opt, g_bg, irr)
+                                       gen.get("photocurrent_mA_cm2", np.zeros(n)), g_opt, g_bg, irr,
+                                       bandgap_eV=np.ravel(eq.effective_gap_eV),
+                                       permittivity=setup.material.permittivity,
+                                       electron_mass_m0=setup.material.electron_mass_m0(T))
+    absorbed = gen.get("absorbed_fraction", np.full(n, np.nan))
+    block["quantum_efficiency"] = np.where(np.asarray(irr) > 0, absorbed, np.nan)
     with np.errstate(divide="ignore", invalid="ignore"):
         block["noise_equivalent_power_W"] = det.noise_equivalent_power_W(
             block["detectivity_cm_Hz05_W"], d.area_cm2, d.bandwidth_Hz)
@@ -452,16 +664,23 @@ def _rear_S_cm_s(d, rec, material, T, eq):
 def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.0):
     """Temperature where the pixel becomes background-limited (root solve over temperature).
 
-    Thermal generation n0 p0 / ((n0 + p0) tau) against the background's
-    generation, both from the full pipeline at each trial temperature.
-    Returns `detector.BackgroundLimit` (temperature_K, found, note).
+    Background-limited means the background photon noise exceeds all other
+    noise together (`detector.background_limited`); the crossing is where the
+    two are equal, i.e. D*/D*_BLIP = 1/sqrt(2).  Both from the full pipeline at
+    each trial temperature.  Returns `detector.BackgroundLimit` (temperature_K, found, note).
     """
     from .detector import background_limit_temperature_K
 
+    import warnings
+
     def fn(T):
         T = np.atleast_1d(np.asarray(T, dtype=float))
-        b = evaluate(setup, {"absorber.temperature_K": T}, T.size)["detector"]
-        return b["thermal_generation_cm3_s"], b["background_generation_cm3_s"]
+        with warnings.catch_warnings():     # the scan's own trial temperatures are not the run's points
+            warnings.simplefilter("ignore", DegenerateWarning)
+            warnings.simplefilter("ignore", PhysicsNoteWarning)
+            b = evaluate(setup, {"absorber.temperature_K": T}, T.size)["detector"]
+        total, bg = b["noise_total_A_Hz05"], b["noise_background_A_Hz05"]
+        return np.maximum(np.sqrt(np.maximum(total**2 - bg**2, 0.0)), 1e-300), bg
     return background_limit_temperature_K(fn, T_low_K, T_high_K)
 
 
@@ -572,8 +791,10 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
         return Result(sc, ds, details, tuple(details.get("warnings", ())))
 
     chunk = chunk_size if chunk_size is not None else sc.get("solver.chunk_size", DEFAULT_CHUNK)
-    if isinstance(chunk, bool) or not isinstance(chunk, int) or chunk < 1:
-        raise InputError("solver.chunk_size", chunk, "an integer >= 1")
+    chunk = schema.check_value("solver.chunk_size", chunk)
+    if sc.get("solver.depth_resolved", False) is True or any(
+            a.key == "solver.depth_resolved" and bool(np.any(a.values)) for a in sc.sweep):
+        chunk = min(chunk, max(1, MAX_PROFILE_CELLS // MAX_PROFILE_NODES))   # bounded Newton working memory
     axes = list(sc.sweep)
     unit_scaling = swept_light_scaling(sc)
     fast = [a for a in axes if a.key in FAST_KEYS]
@@ -601,7 +822,7 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     bar = _progress(progress, total=len(slow_combos) * math.ceil(n_fast / chunk))
     try:
         for g, combo in enumerate(slow_combos):
-            fixed = {a.key: a.values[i].item() for a, i in zip(slow, combo)}
+            fixed = {a.key: np.asarray(a.values[i]).item() for a, i in zip(slow, combo)}
             sc_g = sc.with_values(fixed) if fixed else sc
             setup = build(sc_g, unit_scaling)
             if client is None:
@@ -649,9 +870,17 @@ def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
         "delta_n_cm3", "tau_eff_s", "tau_srh_s", "tau_radiative_s", "tau_auger_s", "tau_surface_s")}
     jph = float(blocks.get("generation", {}).get("photocurrent_mA_cm2", [0.0])[0])
     irr = float(blocks.get("light", {}).get("irradiance_W_m2", [0.0])[0])
-    if jph > 0:
-        out["implied_jv"] = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph,
-                                       irradiance_W_m2=irr if irr > 0 else None)
+    if jph > 0 and bool(np.all(details["steady_state"].converged)):
+        jv = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph, irradiance_W_m2=irr if irr > 0 else None)
+        if jv.efficiency is not None and not bool(np.all(np.asarray(jv.efficiency) <= 1.0)):
+            # P_max above the incident power: the splitting exceeds the photon energy (population
+            # inversion), where linear absorption no longer holds; no number is given
+            jv = dataclasses.replace(jv, efficiency=np.nan * np.asarray(jv.efficiency))
+            out["warnings"] = list(details.get("warnings", ())) + [
+                "implied efficiency is null: the maximum power would exceed the incident power, i.e. the "
+                "splitting exceeds the photon energy of the light (population inversion; the absorption "
+                "model has no stimulated emission)"]
+        out["implied_jv"] = jv
     return out
 
 
@@ -709,9 +938,9 @@ def _dask_client(workers, scheduler):
                          "needs dask and distributed: pip install 'optogen[dask]'") from None
     if scheduler:
         return Client(scheduler)
-    check = int(workers)
-    if check < 1:
-        raise InputError("--workers", workers, "an integer >= 1")
+    if isinstance(workers, bool) or not isinstance(workers, int) or not 1 <= workers <= MAX_WORKERS:
+        raise InputError("--workers", workers, f"an integer from 1 to {MAX_WORKERS}")
+    check = workers
     cluster = LocalCluster(n_workers=check, threads_per_worker=1, processes=True, dashboard_address=None)
     return Client(cluster)
 

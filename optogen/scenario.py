@@ -15,26 +15,13 @@ from typing import Any, Mapping
 
 import numpy as np
 
+from . import schema
 from .errors import InputError, did_you_mean
 
-# Keys this layer validates itself.  [light] and [recombination] (and
-# [absorber.custom]) are validated by the builders of their own modules.
-SECTIONS: dict[str, set[str] | None] = {
-    "absorber": {
-        "material", "custom", "composition_x", "thickness_um", "temperature_K",
-        "donors_cm3", "acceptors_cm3", "resistivity_ohm_cm", "dopant",
-        "donor_species", "acceptor_species", "ni_model", "mobility_model",
-        "incomplete_ionisation", "optical_page", "optical_csv",
-    },
-    "light": None,
-    "optics": {"front_reflectance", "rear_reflectance", "light_path", "coating"},
-    "recombination": None,
-    "background": {"temperature_K", "field_of_view_deg", "emissivity"},
-    "detector": {"mode", "electrode_spacing_um", "width_um", "bias_V", "junction_side_doping_cm3",
-                 "bandwidth_Hz", "rear_S_cm_s"},
-    "solver": {"depth_resolved", "nodes", "chunk_size", "voc_plane"},
-    "sweep": None,
-}
+# Section -> key names, from the schema (optogen.schema declares every key once).
+SECTIONS: dict[str, set[str] | None] = {name: set(schema.section_keys(name)) for name in schema.SECTIONS
+                                        if name not in ("title", "description", "sweep")}
+SECTIONS["sweep"] = None
 TOP_LEVEL = {"title", "description", *SECTIONS}
 
 #: sweep grids larger than this need an explicit yes (``--yes``) or chunked ``--out``
@@ -129,6 +116,7 @@ UNIT_SUFFIXES: dict[str, tuple[str, str]] = {
     "nm": ("nm", "nm"), "mm": ("mm", "mm"), "cm": ("cm", "cm"), "eV": ("eV", "eV"), "mV": ("mV", "mV"),
     "K": ("K", "K"), "V": ("V", "V"), "s": ("s", "s"), "W": ("W", "W"), "A": ("A", "A"), "S": ("S", "S"),
     "deg": ("degree", "°"), "Hz": ("Hz", "Hz"), "suns": ("suns", "suns"),
+    "A_Hz05": ("A Hz-1/2", "A Hz⁻½"), "ohm_cm2": ("ohm cm2", "Ω cm²"),
 }
 _SUFFIX_ORDER = sorted(UNIT_SUFFIXES, key=len, reverse=True)
 
@@ -162,75 +150,76 @@ def parse_value(text: str):
 
 
 def validate(data: Mapping[str, Any]) -> None:
-    """Check the section and key names that this layer owns."""
-    for key in data:
-        if key not in TOP_LEVEL:
-            raise InputError(key, data[key], "a known section: " + ", ".join(sorted(TOP_LEVEL)),
-                             did_you_mean(key, TOP_LEVEL))
-    if "absorber" not in data:
-        raise InputError("absorber", None, "a scenario needs an [absorber] section")
-    for name, allowed in SECTIONS.items():
-        table = data.get(name)
-        if table is None:
-            continue
-        if not isinstance(table, Mapping):
-            raise InputError(name, table, "a table ([" + name + "])")
-        if allowed is None:
-            continue
-        for key in table:
-            if key not in allowed:
-                raise InputError(f"{name}.{key}", table[key],
-                                 f"a key of [{name}]: " + ", ".join(sorted(allowed)),
-                                 did_you_mean(key, allowed))
-    ab = data["absorber"]
-    has_density = any(k in ab for k in ("donors_cm3", "acceptors_cm3"))
-    if "resistivity_ohm_cm" in ab:
-        if has_density:
-            raise InputError("absorber.resistivity_ohm_cm", ab["resistivity_ohm_cm"],
-                             "either a resistivity or donors_cm3/acceptors_cm3, not both")
-        if ab.get("dopant") not in ("n", "p"):
-            raise InputError("absorber.dopant", ab.get("dopant"),
-                             '"n" or "p" with resistivity_ohm_cm')
-    elif "dopant" in ab:
-        raise InputError("absorber.dopant", ab["dopant"], "only with resistivity_ohm_cm")
+    """Check a scenario table (without [sweep]) against the schema: section and key names,
+    kinds, ranges, choices and the rules between keys (`optogen.schema.validate`)."""
+    schema.validate(data)
+
+
+def _axis_spec(field_name: str, spec):
+    """(size, make) for one [sweep] entry: the number of values and a function building them."""
+    if isinstance(spec, list):
+        return len(spec), lambda: list(spec)
+    if isinstance(spec, Mapping):
+        extra = set(spec) - {"log", "linear", "points"}
+        kind = [k for k in ("log", "linear") if k in spec]
+        if extra or len(kind) != 1 or "points" not in spec:
+            raise InputError(field_name, dict(spec),
+                             "a list, { log = [a, b], points = N } or { linear = [a, b], points = N }")
+        lo_hi, n = spec[kind[0]], spec["points"]
+        if not (isinstance(lo_hi, list) and len(lo_hi) == 2 and all(is_number(v) for v in lo_hi)):
+            raise InputError(field_name, dict(spec), "[a, b] of two finite numbers")
+        if isinstance(n, bool) or not isinstance(n, int) or n < 1:
+            raise InputError(field_name, dict(spec), "an integer points >= 1")
+        if n > schema.MAX_POINTS:
+            raise InputError(field_name, dict(spec), f"points <= {schema.MAX_POINTS}")
+        a, b = float(lo_hi[0]), float(lo_hi[1])
+        if kind[0] == "log":
+            if min(a, b) <= 0:
+                raise InputError(field_name, dict(spec), "log ends > 0")
+            return n, lambda: np.geomspace(a, b, n).tolist() if n > 1 else [a]
+        if not math.isfinite(b - a):
+            raise InputError(field_name, dict(spec), "linear ends whose difference is a finite number")
+        return n, lambda: np.linspace(a, b, n).tolist() if n > 1 else [a]
+    return 1, lambda: [spec]
 
 
 def sweep_axes(table: Mapping[str, Any], data: Mapping[str, Any]) -> tuple[SweepAxis, ...]:
-    """Expand a [sweep] table into axes (outer product of their values)."""
-    axes = []
+    """Expand a [sweep] table into axes (outer product of their values).
+
+    Every value is checked against the schema; the grid size is checked against
+    `schema.MAX_POINTS` and the number of slow-key groups against
+    `schema.MAX_SLOW_GROUPS` before any array is built.
+    """
+    if not isinstance(table, Mapping):
+        raise InputError("sweep", table, "a table of dotted keys")
+    specs = []
+    total, slow_groups = 1, 1
     for key, spec in table.items():
         field_name = f"sweep.{key}"
-        section = key.split(".")[0]
-        if section not in SECTIONS or section == "sweep" or "." not in key:
+        k = schema.key_for(key)
+        if k is None or "." not in key:
             raise InputError(field_name, spec, "a dotted scenario key such as \"light.suns\"",
-                             did_you_mean(key, _numeric_keys(data)))
-        if isinstance(spec, list):
-            values = spec
-        elif isinstance(spec, Mapping):
-            extra = set(spec) - {"log", "linear", "points"}
-            kind = [k for k in ("log", "linear") if k in spec]
-            if extra or len(kind) != 1 or "points" not in spec:
-                raise InputError(field_name, dict(spec),
-                                 "a list, { log = [a, b], points = N } or { linear = [a, b], points = N }")
-            lo_hi, n = spec[kind[0]], spec["points"]
-            if not (isinstance(lo_hi, list) and len(lo_hi) == 2) or not isinstance(n, int) or n < 1:
-                raise InputError(field_name, dict(spec), "[a, b] and an integer points >= 1")
-            if kind[0] == "log":
-                if min(lo_hi) <= 0:
-                    raise InputError(field_name, dict(spec), "log ends > 0")
-                values = np.geomspace(lo_hi[0], lo_hi[1], n)
-            else:
-                values = np.linspace(lo_hi[0], lo_hi[1], n)
-        else:
-            values = [spec]
-        arr = np.asarray(values)
-        if arr.ndim != 1 or arr.size == 0:
+                             did_you_mean(key, _numeric_keys(data)) or schema._hint(key))
+        if key.split(".")[0] in ("light", "background", "detector") and key.split(".")[0] not in data:
+            raise InputError(field_name, spec, f"a key of a section the scenario has; add [{key.split('.')[0]}]")
+        size, make = _axis_spec(field_name, spec)
+        if size == 0:
             raise InputError(field_name, spec, "a non-empty list of values")
-        if arr.dtype.kind in "iuf" and not np.all(np.isfinite(arr)):
-            raise InputError(field_name, spec, "finite numbers")
-        if arr.dtype.kind in "iu":
-            arr = arr.astype(float)
-        axes.append(SweepAxis(key, arr))
+        total *= size
+        if k.sweep != schema.FAST:
+            slow_groups *= size
+        specs.append((key, make))
+    if total > schema.MAX_POINTS:
+        raise InputError("sweep", f"{total} points", f"at most {schema.MAX_POINTS} grid points",
+                         "split the sweep into several runs")
+    if slow_groups > schema.MAX_SLOW_GROUPS:
+        raise InputError("sweep", f"{slow_groups} combinations of slow keys",
+                         f"at most {schema.MAX_SLOW_GROUPS} (each rebuilds the material and spectrum)",
+                         "sweep fewer values of the slow keys, or split the run")
+    axes = []
+    for key, make in specs:
+        values = make()
+        axes.append(SweepAxis(key, schema.check_sweep_values(key, values)))
     return tuple(axes)
 
 
@@ -244,39 +233,81 @@ def _numeric_keys(data, prefix=""):
     return out
 
 
-def load_scenario(source, overrides: Mapping[str, Any] | None = None) -> Scenario:
-    """Read a scenario from a path or from TOML text.
+def load_scenario(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None) -> Scenario:
+    """Read a scenario from a path, from TOML text or from an already parsed table.
 
-    source: a path to a .toml file, or the TOML text itself [-]
+    source: a path to a .toml file, the TOML text itself, or a dict as tomllib returns it [-]
     overrides: dotted-key values applied on top (as ``--set``) [-]
+    base_dir: folder that relative paths in a text or dict scenario refer to (default: the
+        current folder; a file's own folder for a path) [-]
     """
     path = "<text>"
-    base = Path.cwd()
+    base = Path(base_dir) if base_dir is not None else Path.cwd()
     text = None
-    if isinstance(source, Path) or (isinstance(source, str) and "\n" not in source
-                                    and source.strip().endswith(".toml")):
+    if isinstance(source, Mapping):        # an already parsed table (as tomllib gives it)
+        data = copy.deepcopy(dict(source))
+        return _from_data(data, "", base_dir if base_dir is not None else Path.cwd(), path, overrides)
+    if not isinstance(source, (str, Path)):
+        raise InputError("scenario", type(source).__name__,
+                         "a path to a .toml file, the TOML text or a table (dict)")
+    if isinstance(source, Path) or ("\n" not in source and source.strip().endswith(".toml")):
         p = Path(source)
         if not p.is_file():
             raise InputError("scenario", str(source), "an existing .toml file")
-        text, path, base = p.read_text(encoding="utf-8"), str(p), p.resolve().parent
+        try:
+            raw = p.read_bytes()
+        except OSError as exc:
+            raise InputError("scenario", str(p), "a readable file", exc.strerror or str(exc)) from None
+        if len(raw) > schema.MAX_TEXT_BYTES:
+            raise InputError("scenario", str(p), f"a file of at most {schema.MAX_TEXT_BYTES} bytes")
+        try:
+            text = raw.decode("utf-8")
+        except UnicodeDecodeError as exc:
+            raise InputError("scenario", str(p), "UTF-8 text", f"byte {exc.start}: {exc.reason}") from None
+        path, base = str(p), p.resolve().parent
     else:
         text = str(source)
+        if len(text.encode("utf-8", "surrogatepass")) > schema.MAX_TEXT_BYTES:
+            raise InputError("scenario", "<text>", f"at most {schema.MAX_TEXT_BYTES} bytes of TOML")
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError("scenario", path, f"valid TOML ({exc})") from None
-    sweep_table = data.pop("sweep", {}) or {}
+    return _from_data(data, text, base, path, overrides)
+
+
+def _from_data(data: dict, text: str, base: Path, path: str, overrides) -> Scenario:
+    sweep_table = data.pop("sweep", {})
+    sweep_table = {} if sweep_table is None else sweep_table
     validate(data)
     axes = sweep_axes(sweep_table, data)
-    for ax in axes:                      # the swept key must be a valid field too
-        probe = copy.deepcopy(data)
-        _set_dotted(probe, ax.key, ax.values[0].item())
-        validate(probe)
-    sc = Scenario(data=data, text=text, base_dir=base, sweep=axes, path=path)
+    _probe_axes(data, axes)
+    sc = Scenario(data=data, text=text, base_dir=Path(base), sweep=axes, path=path)
     if overrides:
         sc = sc.with_values(overrides)
     return sc
 
 
+def _probe_axes(data, axes) -> None:
+    """Validate the scenario with each swept key set to its extreme (numbers) or each (other)
+    value, so that rules between keys (e.g. the doping sum) hold across the sweep."""
+    for ax in axes:
+        vals = ax.values
+        if vals.dtype.kind == "f":
+            picks = {float(vals.min()), float(vals.max())}
+        else:
+            picks = {v.item() if hasattr(v, "item") else v for v in vals[:64]}
+        for v in picks:
+            probe = copy.deepcopy(data)
+            _set_dotted(probe, ax.key, v)
+            validate(probe)
+
+
 def is_number(x) -> bool:
-    return isinstance(x, (int, float, np.integer, np.floating)) and not isinstance(x, bool) and math.isfinite(float(x))
+    """True for a finite int or float (not a bool; an int too large for a float is not a number)."""
+    if isinstance(x, (bool, np.bool_)) or not isinstance(x, (int, float, np.integer, np.floating)):
+        return False
+    try:
+        return math.isfinite(float(x))
+    except OverflowError:
+        return False

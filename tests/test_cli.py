@@ -125,3 +125,127 @@ def test_nep_follows_from_detectivity_area_and_bandwidth(capsys):
     # NEP = sqrt(A df) / D* (Rogalski 2011, ch. 3)
     assert det["noise_equivalent_power_W"] == pytest.approx((area_cm2 * 100) ** 0.5 / det["detectivity_cm_Hz05_W"],
                                                             rel=1e-12)
+
+
+# -- the error boundary (issue 15): input errors exit 2, our bugs exit 1 with a report line -------
+
+def _boom(*args, **kwargs):
+    raise ValueError("an internal inconsistency")       # not an InputError: a bug of ours
+
+
+def test_internal_error_is_exit_1_one_line_without_traceback(capsys, monkeypatch):
+    import optogen.runner
+    monkeypatch.setattr(optogen.runner, "run", _boom)
+    monkeypatch.delenv("OPTOGEN_DEBUG", raising=False)
+    assert main(["run", str(SCEN / "rooftop_n_wafer.toml")]) == 1
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert err.startswith("optogen: internal error: ValueError: an internal inconsistency")
+    assert "--debug" in err and "report" in err
+
+
+@pytest.mark.parametrize("how", ["flag", "flag_after", "env"])
+def test_debug_shows_the_traceback(capsys, monkeypatch, how):
+    import optogen.runner
+    monkeypatch.setattr(optogen.runner, "run", _boom)
+    args = ["run", str(SCEN / "rooftop_n_wafer.toml")]
+    if how == "flag":
+        args = ["--debug", *args]
+    elif how == "flag_after":
+        args = [*args, "--debug"]
+    else:
+        monkeypatch.setenv("OPTOGEN_DEBUG", "1")
+    assert main(args) == 1
+    err = capsys.readouterr().err
+    assert "Traceback" in err and "optogen: internal error: ValueError" in err
+
+
+def test_unreadable_scenarios_are_input_errors(capsys, tmp_path):
+    folder = tmp_path / "dir.toml"
+    folder.mkdir()
+    binary = tmp_path / "binary.toml"
+    binary.write_bytes(b"title = \"\xff\xfe\"\n")
+    for path, needle in ((folder, "existing .toml file"), (binary, "UTF-8")):
+        assert main(["check", str(path)]) == 2
+        err = capsys.readouterr().err
+        assert err.count("\n") == 1 and needle in err and str(path) in err
+
+
+def test_out_folder_that_cannot_be_written_is_an_input_error(capsys, tmp_path):
+    blocker = tmp_path / "a_file"
+    blocker.write_text("not a folder")
+    assert main(["run", str(SCEN / "dark_wafer_equilibrium.toml"), "--out", str(blocker / "sub")]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("optogen: error: --out") and str(blocker / "sub") in err
+
+
+def test_out_writes_all_files_or_none(capsys, tmp_path, monkeypatch):
+    import optogen.plots
+    out = tmp_path / "out"
+    monkeypatch.setattr(optogen.plots, "band_diagram", _boom)       # the last figure fails
+    assert main(["run", str(SCEN / "rooftop_n_wafer.toml"), "--out", str(out)]) == 1
+    capsys.readouterr()
+    assert list(out.iterdir()) == []                                  # nothing, not even a staging folder
+
+
+def test_out_files_follow_the_umask(capsys, tmp_path):
+    import os
+    import stat
+    old = os.umask(0o027)
+    try:
+        assert main(["run", str(SCEN / "dark_wafer_equilibrium.toml"), "--out", str(tmp_path / "o")]) == 0
+    finally:
+        os.umask(old)
+    capsys.readouterr()
+    modes = {stat.S_IMODE(p.stat().st_mode) for p in (tmp_path / "o").iterdir()}
+    assert modes == {0o640}                       # 0o666 & ~0o027 (POSIX file creation mode)
+
+
+EXPECTED_POINT_FILES = {"result.json", "result.nc", "result.csv", "generation_profile.csv", "generation_profile.png",
+                        "implied_jv.csv", "implied_jv.png", "lifetime_curve.csv", "lifetime_curve.png",
+                        "band_diagram.png"}          # README "Files (--out DIR)" for a single lit point
+
+
+@pytest.mark.parametrize("T", [4, 10, 77, 1000])
+def test_out_writes_every_file_across_the_temperature_domain(capsys, tmp_path, T):
+    out = tmp_path / f"T{T}"
+    code = main(["run", str(SCEN / "rooftop_n_wafer.toml"), "--set", f"absorber.temperature_K={T}",
+                 "--out", str(out), "--quiet"])
+    err = capsys.readouterr().err
+    assert code == 0, err
+    assert {p.name for p in out.iterdir()} == EXPECTED_POINT_FILES
+
+
+def test_one_value_sweep_writes_its_files(capsys, tmp_path):
+    path = tmp_path / "one.toml"
+    path.write_text((SCEN / "rooftop_n_wafer.toml").read_text() + '\n[sweep]\n"light.suns" = [1.0]\n')
+    assert main(["run", str(path), "--out", str(tmp_path / "o"), "--quiet"]) == 0, capsys.readouterr().err
+    assert {p.name for p in (tmp_path / "o").iterdir()} == {"result.json", "result.nc", "result.csv",
+                                                             "sweep_lines.png"}
+
+
+def test_schema_command_lists_every_key(capsys):
+    from optogen import schema
+    assert main(["schema"]) == 0
+    out = capsys.readouterr().out
+    assert all(path in out for path in schema.KEYS)
+
+
+@pytest.mark.parametrize("setting", ["absorber.temperature_K=nan", "absorber.temperature_K='300'",
+                                     "light.suns=[]", "solver.nodes=20001", "absorber.donors_cm3=true"])
+def test_wrong_set_values_are_input_errors(capsys, setting):
+    assert main(["check", str(SCEN / "rooftop_n_wafer.toml"), "--set", setting]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and setting.split("=")[0] in err
+
+
+def test_check_applies_the_light_ceiling_to_the_brightest_swept_value(capsys, tmp_path):
+    # 1e22 photons cm-2 s-1 of AM1.5G: about 2.3e7 W m-2 (AM1.5G mean photon energy ~1.45 eV, ASTM G173,
+    # from memory), above the 1e7 W m-2 ceiling; 1e20 is well below it
+    path = tmp_path / "flux.toml"
+    path.write_text((SCEN / "rooftop_n_wafer.toml").read_text().replace("suns = 1.0", "photon_flux_cm2_s = 1e17")
+                    + '\n[sweep]\n"light.photon_flux_cm2_s" = [1e17, 1e22]\n')
+    assert main(["check", str(path)]) == 2
+    assert "light.photon_flux_cm2_s" in capsys.readouterr().err
+    path.write_text(path.read_text().replace("1e22]", "1e20]"))
+    assert main(["check", str(path)]) == 0

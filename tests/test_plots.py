@@ -405,3 +405,38 @@ def test_no_pyplot_and_no_display_needed(tmp_path):
     run = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True)
     assert run.returncode == 0, run.stderr
     assert (tmp_path / "b.png").read_bytes()[:8] == PNG_SIGNATURE
+
+
+# ------------------------------------------------- robustness: one-value sweeps and missing values
+
+def test_sweep_lines_draws_a_one_value_sweep_as_one_point():
+    fig = plots.sweep_lines(_sweep_1d(values=[1.0]))
+    ax = fig.axes[0]
+    x, y = ax.lines[0].get_data()
+    assert list(x) == [1.0] and y[0] == pytest.approx(0.60)     # implied_voc_V at x = x[0] (fixture formula)
+
+
+def test_sweep_lines_squeezes_one_value_second_key():
+    ds = _sweep_1d().expand_dims({"absorber.thickness_um": [160.0]})
+    fig = plots.sweep_lines(ds)
+    assert fig.axes[0].lines[0].get_xdata().size == 21
+
+
+def test_band_diagram_with_a_missing_level_names_it_and_draws_the_rest():
+    fig = plots.band_diagram(1.17, 1.14, 1.15, float("nan"), intrinsic_level_eV=0.58)
+    ax = fig.axes[0]
+    lo, hi = ax.get_ylim()
+    assert np.isfinite(lo) and np.isfinite(hi)
+    heights = sorted(round(float(ln.get_ydata()[0]), 6) for ln in ax.lines if ln.get_xdata()[0] == 0.0)
+    assert heights == [0.0, 0.58, 1.14, 1.15, 1.17]             # the hole level is left out
+    assert any(t.get_text().startswith("no value:") and "E_\\mathrm{Fp}" in t.get_text() for t in ax.texts)
+    assert not any("Δμ" in t.get_text() for t in ax.texts)
+
+
+def test_save_figure_gives_the_umask_permissions(tmp_path):
+    old = os.umask(0o022)
+    try:
+        out = plots.save_figure(plots.sweep_lines(_sweep_1d()), tmp_path / "f.png")
+    finally:
+        os.umask(old)
+    assert os.stat(out).st_mode & 0o777 == 0o644                 # 0o666 & ~0o022 (POSIX creation mode)

@@ -108,3 +108,30 @@ def test_a_key_inside_a_list_of_tables_can_be_set_and_swept():
     assert sw.n_points == 2
     with pytest.raises(InputError, match="index"):
         load_scenario(text).with_values({"recombination.defects.3.density_cm3": 1.0})
+
+
+def test_a_parsed_table_loads_like_its_text():
+    import tomllib
+    a = load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = [250, 300]\n')
+    b = load_scenario(tomllib.loads(BASE + '\n[sweep]\n"absorber.temperature_K" = [250, 300]\n'))
+    assert a.data == b.data
+    assert [ax.key for ax in a.sweep] == [ax.key for ax in b.sweep]
+    np.testing.assert_array_equal(a.sweep[0].values, b.sweep[0].values)
+
+
+def test_one_value_log_sweep_is_its_first_end():
+    sc = load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = { log = [250, 350], points = 1 }\n')
+    assert sc.sweep[0].values.tolist() == [250.0]          # a one-point range is its first end (arithmetic)
+
+
+@pytest.mark.parametrize("source", [None, 3.5, b"[absorber]"])
+def test_a_source_that_is_no_scenario_is_an_input_error(source):
+    with pytest.raises(InputError, match="scenario"):
+        load_scenario(source)
+
+
+def test_linear_sweep_whose_span_overflows_is_an_input_error():
+    # 1e308 - (-1e308) = 2e308 overflows a double (IEEE 754 max ~1.8e308)
+    with np.errstate(all="raise"):                 # no overflow may happen on the way to the error
+        with pytest.raises(InputError, match="finite"):
+            load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = { linear = [1e308, -1e308], points = 2 }\n')

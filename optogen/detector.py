@@ -22,15 +22,14 @@ from .errors import InputError, check_range, did_you_mean
 __all__ = [
     "MODES", "Detector", "detector_from_table", "require_mode",
     "electric_field_V_cm", "transit_time_s", "photoconductive_gain", "bar_current_A",
-    "conductivity_contrast", "responsivity_A_W", "responsivity_broadband_A_W",
+    "conductivity_contrast", "responsivity_A_W", "high_field_caution", "SATURATION_VELOCITY_cm_s",
     "noise_equivalent_power_W", "j0_thick_base_mA_cm2", "j0_base_mA_cm2", "thermal_generation_cm3_s",
-    "detectivity_gr_cm_Hz05_W", "detectivity_shot_cm_Hz05_W", "field_of_view_factor",
+    "bulk_lifetime_s", "minority_ratio",
     "background_limited", "BackgroundLimit", "background_limit_temperature_K",
     "shot_noise_A_Hz05", "gr_noise_photoconductor_A_Hz05", "johnson_noise_A_Hz05", "total_noise_A_Hz05",
-    "detectivity_from_noise_cm_Hz05_W", "detectivity_blip_photodiode_cm_Hz05_W",
-    "detectivity_blip_photoconductor_cm_Hz05_W", "detectivity_blip_cm_Hz05_W",
-    "built_in_potential_V", "depletion_width_cm", "depletion_current_sah_noyce_shockley_mA_cm2",
-    "r0a_ohm_cm2", "photodiode_thermal_noise_A_Hz05", "tunnelling_moll1964_mA_cm2", "spectral_response",
+    "noise_without_A_Hz05", "detectivity_from_noise_cm_Hz05_W", "detectivity_blip_cm_Hz05_W",
+    "built_in_potential_V", "forward_bias_limit_V", "depletion_width_cm", "depletion_saturation_mA_cm2",
+    "depletion_current_sah_noyce_shockley_mA_cm2", "r0a_ohm_cm2", "photodiode_thermal_noise_A_Hz05", "tunnelling_moll1964_mA_cm2", "spectral_response",
     "JUNCTION_SIDE_DOPING_DEFAULT_cm3", "photoconductor_figures", "photodiode_figures",
 ]
 
@@ -42,11 +41,11 @@ def _arr(x):
 
 
 def _spacing(electrode_spacing_cm):
-    return _arr(check_range("detector.electrode_spacing_um", electrode_spacing_cm, 0.0, low_open=True, unit="(given in cm)"))
+    return _arr(check_range("electrode_spacing_cm", electrode_spacing_cm, 0.0, low_open=True, unit="cm"))
 
 
 def _bias(bias_V, allow_zero):
-    return _arr(check_range("detector.bias_V", bias_V, 0.0, low_open=not allow_zero, unit="V (bias magnitude)"))
+    return _arr(check_range("bias_V", bias_V, 0.0, low_open=not allow_zero, unit="V (bias magnitude)"))
 
 
 # ---------------------------------------------------------------------------
@@ -60,7 +59,8 @@ class Detector:
     mode: "photoconductor" or "photodiode" [-]
     electrode_spacing_um: distance between the electrodes of a photoconductor bar [um]
     width_um: bar (or pixel) width across the current [um]
-    bias_V: photoconductor: bias magnitude across the electrodes (>= 0);
+    bias_V: photoconductor: bias magnitude across the electrodes (> 0: the
+        gain needs a drift field);
         photodiode: applied bias, negative = reverse [V]
     junction_side_doping_cm3: doping of the heavily doped side of a one-sided
         junction (photodiode); its own J0 share is neglected in the one-sided
@@ -69,8 +69,8 @@ class Detector:
     rear_S_cm_s: back-surface recombination velocity of the base for the
         thin-base J0 (None: take it from [recombination]) [cm/s]
     generation_lifetime_s: generation lifetime tau_g in the depletion region
-        for the Sah-Noyce-Shockley current (photodiode; None: the base's dark
-        low-injection lifetime) [s]
+        for the Sah-Noyce-Shockley current (photodiode; None: the SRH lifetime
+        of the base's dark low-injection state, see `photodiode_figures`) [s]
     """
 
     mode: str = "photoconductor"
@@ -90,7 +90,8 @@ class Detector:
         check_range("detector.electrode_spacing_um", self.electrode_spacing_um, 0.0, low_open=True, unit="um")
         check_range("detector.width_um", self.width_um, 0.0, low_open=True, unit="um")
         if mode == "photoconductor":
-            check_range("detector.bias_V", self.bias_V, 0.0, unit="V (a photoconductor takes a bias magnitude)")
+            check_range("detector.bias_V", self.bias_V, 0.0, low_open=True,
+                        unit="V (a photoconductor takes a bias magnitude; without one there is no photocurrent)")
         else:
             check_range("detector.bias_V", self.bias_V, unit="V")
         for key in ("junction_side_doping_cm3", "rear_S_cm_s", "generation_lifetime_s"):
@@ -159,7 +160,7 @@ def transit_time_s(electrode_spacing_cm, mobility_cm2_Vs, bias_V):
     (mu_e + mu_h) E A (A. Rose, Concepts in Photoconductivity and Allied
     Problems, Interscience 1963; S. M. Sze and K. K. Ng, Physics of
     Semiconductor Devices, 3rd ed., Wiley 2007, sec. 13.2, where
-    gain = tau mu_n (1 + mu_p/mu_n) E / L).  Pass a single mobility for the
+    gain = tau mu_n (1 + mu_p/mu_n) E / L; both from memory).  Pass a single mobility for the
     transit time of that carrier alone.
 
     electrode_spacing_cm [cm] (> 0); mobility_cm2_Vs [cm^2 V^-1 s^-1]; bias_V [V] (> 0).
@@ -169,7 +170,7 @@ def transit_time_s(electrode_spacing_cm, mobility_cm2_Vs, bias_V):
 
 
 def photoconductive_gain(tau_s, transit_time_s):
-    """Photoconductive gain g = tau / t_tr [-] (Rose 1963; Sze & Ng 2007 sec. 13.2).
+    """Photoconductive gain g = tau / t_tr [-] (Rose 1963; Sze & Ng 2007 sec. 13.2; from memory).
 
     tau_s: effective excess-carrier lifetime [s]; transit_time_s [s].
     """
@@ -183,8 +184,8 @@ def bar_current_A(conductivity_S_cm, bias_V, electrode_spacing_cm, width_cm, thi
     photocurrent.  conductivity_S_cm [S/cm]; bias_V [V] (>= 0);
     electrode_spacing_cm, width_cm, thickness_cm [cm].
     """
-    w = _arr(check_range("detector.width_um", width_cm, 0.0, low_open=True, unit="(length)"))
-    t = _arr(check_range("absorber.thickness_um", thickness_cm, 0.0, low_open=True, unit="(length)"))
+    w = _arr(check_range("width_cm", width_cm, 0.0, low_open=True, unit="cm"))
+    t = _arr(check_range("thickness_cm", thickness_cm, 0.0, low_open=True, unit="cm"))
     return _arr(conductivity_S_cm) * electric_field_V_cm(bias_V, electrode_spacing_cm) * w * t
 
 
@@ -204,19 +205,9 @@ def responsivity_A_W(wavelength_nm, quantum_efficiency=1.0, gain=1.0):
     (e.g. A. Rogalski, Infrared Detectors, 2nd ed., CRC 2011, ch. 3).
     wavelength_nm [nm]; quantum_efficiency [-]; gain [-].
     """
-    lam = check_range("light.wavelength_nm", wavelength_nm, 0.0, low_open=True, unit="nm")
-    eta = check_range("detector.quantum_efficiency", quantum_efficiency, 0.0, 1.0)
+    lam = check_range("wavelength_nm", wavelength_nm, 0.0, low_open=True, unit="nm")
+    eta = check_range("quantum_efficiency", quantum_efficiency, 0.0, 1.0)
     return _arr(eta) * _arr(gain) * _arr(lam) / hc_eV_nm
-
-
-def responsivity_broadband_A_W(photocurrent_A, incident_power_W):
-    """Responsivity to a broadband source R = I_ph / P_incident [A/W].
-
-    photocurrent_A [A]; incident_power_W [W] (> 0): the light power on the
-    detector area (before reflection).
-    """
-    P = check_range("light.power_W", incident_power_W, 0.0, low_open=True, unit="W")
-    return _arr(photocurrent_A) / _arr(P)
 
 
 # ---------------------------------------------------------------------------
@@ -227,15 +218,16 @@ def j0_thick_base_mA_cm2(ni_cm3, base_doping_cm3, D_cm2_s, tau_s):
     """Diffusion-limited saturation current density of a one-sided junction, thick base [mA/cm^2].
 
     J0 = q n_i^2 D / (N L),  L = sqrt(D tau)   (base width W >> L)
-    (W. Shockley, Bell Syst. Tech. J. 28, 435 (1949); Sze & Ng 2007, eq. 2.64).
+    (W. Shockley, Bell Syst. Tech. J. 28, 435 (1949); S. M. Sze and K. K. Ng,
+    Physics of Semiconductor Devices, 3rd ed., Wiley 2007, sec. 2.3 (from memory)).
+    tau = inf (no bulk recombination) gives 0.
 
     ni_cm3: intrinsic density (n_i,eff where narrowing matters) [cm^-3];
     base_doping_cm3: net base doping N [cm^-3]; D_cm2_s, tau_s: minority-carrier
     diffusion coefficient [cm^2/s] and lifetime [s] in the base.
     """
     ni, N, D, tau = (_arr(x) for x in (ni_cm3, base_doping_cm3, D_cm2_s, tau_s))
-    L = np.sqrt(D * tau)
-    return 1e3 * q_C * ni * (ni / N) * D / L
+    return 1e3 * q_C * ni * (ni / N) * np.sqrt(D / tau)            # D / L = sqrt(D / tau)
 
 
 def j0_base_mA_cm2(ni_cm3, base_doping_cm3, D_cm2_s, tau_s, base_width_cm, rear_S_cm_s):
@@ -243,7 +235,9 @@ def j0_base_mA_cm2(ni_cm3, base_doping_cm3, D_cm2_s, tau_s, base_width_cm, rear_
 
     J0 = (q n_i^2 D / (N L)) [ (S L/D) cosh(W/L) + sinh(W/L) ] / [ (S L/D) sinh(W/L) + cosh(W/L) ]
        = (q n_i^2 D / (N L)) (s + tanh(W/L)) / (1 + s tanh(W/L)),  s = S L / D
-    (evaluated in the tanh form, which does not overflow for W >> L).
+    Evaluated as (q n_i^2 / N) (S + (D/L) tanh u) / (1 + (S W / D) tanh(u)/u),
+    u = W/L, which does not overflow for W >> L and holds for tau = inf
+    (no bulk recombination: q n_i^2 S / (N (1 + S W / D))).
     Limits: W >> L -> thick base; S -> inf (ohmic back contact) -> coth(W/L),
     and W << L -> q n_i^2 D/(N W); S = 0 -> tanh(W/L), and W << L ->
     q n_i^2 W / (N tau).  Source: e.g. M. A. Green, Solar Cells: Operating
@@ -255,15 +249,17 @@ def j0_base_mA_cm2(ni_cm3, base_doping_cm3, D_cm2_s, tau_s, base_width_cm, rear_
     base_width_cm: quasi-neutral base width W [cm]; rear_S_cm_s: back-surface
     recombination velocity S (>= 0, inf allowed) [cm/s].
     """
-    W = _arr(check_range("absorber.thickness_um", base_width_cm, 0.0, low_open=True, unit="(length)"))
-    S = _arr(check_range("recombination.rear_S_cm_s", rear_S_cm_s, 0.0, np.inf, unit="cm/s"))
-    D, tau = _arr(D_cm2_s), _arr(tau_s)
-    L = np.sqrt(D * tau)
-    th = np.tanh(W / L)
-    s = S * L / D
-    with np.errstate(invalid="ignore"):
-        ratio = np.where(np.isinf(s), 1.0 / th, (s + th) / (1.0 + s * th))
-    return j0_thick_base_mA_cm2(ni_cm3, base_doping_cm3, D, tau) * ratio
+    W = _arr(check_range("base_width_cm", base_width_cm, 0.0, low_open=True, unit="cm"))
+    S = _arr(check_range("rear_S_cm_s", rear_S_cm_s, 0.0, np.inf, unit="cm/s"))
+    ni, N, D, tau = (_arr(x) for x in (ni_cm3, base_doping_cm3, D_cm2_s, tau_s))
+    u = W / np.sqrt(D * tau)                                   # W / L
+    th = np.tanh(u)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        thc = np.where(u > 1e-8, th / np.where(u > 1e-8, u, 1.0), 1.0)     # tanh(u)/u
+        d_over_l = np.sqrt(D / tau)
+        finite = (S + d_over_l * th) / (1.0 + S * W * thc / D)
+        ratio = np.where(np.isinf(S), D / (W * thc), finite)
+    return 1e3 * q_C * ni * (ni / N) * ratio
 
 
 # ---------------------------------------------------------------------------
@@ -286,45 +282,35 @@ def thermal_generation_cm3_s(n0_cm3, p0_cm3, tau_s):
     return (n0 * p0 / (n0 + p0)) / _arr(tau_s)
 
 
-def detectivity_gr_cm_Hz05_W(wavelength_nm, generation_cm3_s, thickness_cm, quantum_efficiency=1.0,
-                             recombination_cm3_s=None):
-    """Generation-recombination-noise-limited detectivity of a photoconductor [cm Hz^1/2 W^-1].
+def bulk_lifetime_s(tau_srh_s, tau_radiative_s, tau_auger_s):
+    """Bulk lifetime 1 / (1/tau_SRH + 1/tau_rad + 1/tau_Auger) [s] (surfaces left out).
 
-    D* = eta lambda / (h c) / sqrt(2 (G + R) t)
-    from the g-r noise current i_n^2 = 2 q^2 g^2 (G + R) A t df and the
-    responsivity eta g q lambda/(h c); the gain g cancels.  In steady state
-    R = G (the default), giving D* = eta lambda / (2 h c sqrt(G t)); with
-    G t = eta Phi_B (background only) this is the photoconductor BLIP limit
-    D* = (lambda / 2hc) sqrt(eta / Phi_B), a factor sqrt(2) below a photodiode
-    (A. Rogalski, Infrared Detectors, 2nd ed., CRC 2011, ch. 3 and 9;
-    M. A. Kinch, Fundamentals of Infrared Detector Materials, SPIE 2007).
-
-    wavelength_nm [nm]; generation_cm3_s: total generation, thermal + optical
-    + background [cm^-3 s^-1]; thickness_cm: absorber thickness t [cm];
-    quantum_efficiency [-]; recombination_cm3_s [cm^-3 s^-1] (default = G).
+    Parallel recombination channels add as rates (common practice); inf means
+    the channel is absent, all inf gives inf.  tau_*_s [s].
     """
-    lam_m = _arr(check_range("light.wavelength_nm", wavelength_nm, 0.0, low_open=True, unit="nm")) * 1e-9
-    G = _arr(generation_cm3_s)
-    R = G if recombination_cm3_s is None else _arr(recombination_cm3_s)
-    t = _arr(check_range("absorber.thickness_um", thickness_cm, 0.0, low_open=True, unit="(length)"))
-    return _arr(quantum_efficiency) * lam_m / (h_J_s * c_m_s) / np.sqrt(2.0 * (G + R) * t)
+    with np.errstate(divide="ignore"):
+        rate = 1.0 / _arr(tau_srh_s) + 1.0 / _arr(tau_radiative_s) + 1.0 / _arr(tau_auger_s)
+        return 1.0 / rate
 
 
-def detectivity_shot_cm_Hz05_W(wavelength_nm, dark_current_mA_cm2, quantum_efficiency=1.0, zero_bias=False):
-    """Shot-noise-limited detectivity of a photodiode [cm Hz^1/2 W^-1].
+def minority_ratio(ln_n0_cm3, ln_p0_cm3, n_cm3, p_cm3):
+    """Illuminated over dark minority density, p/p0 (n-type) or n/n0 (p-type) [-].
 
-    D* = R_i / sqrt(2 q J),  R_i = eta q lambda / (h c)
-    under bias (J = dark current density).  At zero bias the forward and
-    reverse diffusion currents both contribute: i_n^2 = 4 q J0 A df
-    (= 4 k T A df / (R0 A), the Johnson noise of R0 A = kT/(q J0)), so
-    D* = R_i / sqrt(4 q J0) when zero_bias is True (Rogalski 2011, ch. 3 and 12).
-
-    wavelength_nm [nm]; dark_current_mA_cm2 [mA/cm^2] (> 0); quantum_efficiency [-].
+    Computed from the logarithms of the dark densities, so a dark minority
+    density that underflows a double (degenerate narrow-gap material) gives no
+    division by zero; a ratio above the largest double is NaN (null: the dark
+    minority density is below 1e-308 of the illuminated one).
+    ln_n0_cm3, ln_p0_cm3: ln of the dark densities [ln cm^-3]; n_cm3, p_cm3:
+    illuminated densities [cm^-3].
     """
-    J = _arr(check_range("detector.dark_current_mA_cm2", dark_current_mA_cm2, 0.0, low_open=True,
-                         unit="mA/cm^2")) * 1e-3
-    factor = 4.0 if zero_bias else 2.0
-    return responsivity_A_W(wavelength_nm, quantum_efficiency) / np.sqrt(factor * q_C * J)
+    ln_n0, ln_p0 = _arr(ln_n0_cm3), _arr(ln_p0_cm3)
+    n_type = ln_n0 >= ln_p0
+    ln_dark = np.where(n_type, ln_p0, ln_n0)
+    light = np.where(n_type, _arr(p_cm3), _arr(n_cm3))
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        ln_light = np.where(light > 0, np.log(np.where(light > 0, light, 1.0)), ln_dark)
+        ratio = np.exp(np.minimum(ln_light - ln_dark, 800.0))
+    return np.where(np.isfinite(ratio), ratio, np.nan)
 
 
 def noise_equivalent_power_W(detectivity_cm_Hz05_W, area_cm2, bandwidth_Hz):
@@ -333,19 +319,9 @@ def noise_equivalent_power_W(detectivity_cm_Hz05_W, area_cm2, bandwidth_Hz):
     detectivity_cm_Hz05_W [cm Hz^1/2 W^-1]; area_cm2: detector area [cm^2];
     bandwidth_Hz: noise bandwidth [Hz].
     """
-    A = check_range("detector.area_cm2", area_cm2, 0.0, low_open=True, unit="cm^2")
-    df = check_range("detector.bandwidth_Hz", bandwidth_Hz, 0.0, low_open=True, unit="Hz")
+    A = check_range("area_cm2", area_cm2, 0.0, low_open=True, unit="cm^2")
+    df = check_range("bandwidth_Hz", bandwidth_Hz, 0.0, low_open=True, unit="Hz")
     return np.sqrt(_arr(A) * _arr(df)) / _arr(detectivity_cm_Hz05_W)
-
-
-def field_of_view_factor(field_of_view_deg):
-    """Fraction of hemispherical background flux seen through a cold shield, sin^2(theta) [-].
-
-    theta is the field-of-view half-angle; 90 deg = the full hemisphere
-    (Rogalski 2011, ch. 3).  field_of_view_deg [deg], in (0, 90].
-    """
-    th = check_range("background.field_of_view_deg", field_of_view_deg, 0.0, 90.0, low_open=True, unit="deg")
-    return np.sin(np.radians(_arr(th))) ** 2
 
 
 def background_limited(other_noise, background_noise):
@@ -402,6 +378,12 @@ def total_noise_A_Hz05(*terms):
     return np.sqrt(sum(_arr(t)**2 for t in terms))
 
 
+def noise_without_A_Hz05(total_A_Hz05, term_A_Hz05):
+    """The rest of a total noise once one independent term is taken out,
+    sqrt(total^2 - term^2), floored at 0 against round-off [A/Hz^1/2]."""
+    return np.sqrt(np.maximum(_arr(total_A_Hz05)**2 - _arr(term_A_Hz05)**2, 0.0))
+
+
 def detectivity_from_noise_cm_Hz05_W(responsivity_A_W, noise_A_Hz05, area_cm2):
     """Specific detectivity D* = R sqrt(A) / i_n [cm Hz^1/2 W^-1] (per unit bandwidth).
 
@@ -414,32 +396,6 @@ def detectivity_from_noise_cm_Hz05_W(responsivity_A_W, noise_A_Hz05, area_cm2):
         return _arr(responsivity_A_W) * np.sqrt(_arr(area_cm2)) / _arr(noise_A_Hz05)
 
 
-def detectivity_blip_photodiode_cm_Hz05_W(wavelength_nm, quantum_efficiency, background_flux_cm2_s):
-    """Background-limited D* of a photodiode, D*_BLIP = (lambda / hc) sqrt(eta / (2 Q_B)) [cm Hz^1/2 W^-1].
-
-    Shot noise of the background photocurrent only, 2 q^2 eta Q_B A
-    (Rogalski 2011, ch. 3, eq. for photovoltaic BLIP; from memory).
-    wavelength_nm [nm]; quantum_efficiency eta [-]; background_flux_cm2_s:
-    incident background photon flux Q_B [cm^-2 s^-1].
-    """
-    lam_cm = _arr(wavelength_nm) * 1e-7
-    with np.errstate(divide="ignore"):
-        return lam_cm / (h_J_s * c_m_s * 100.0) * np.sqrt(_arr(quantum_efficiency) / (2.0 * _arr(background_flux_cm2_s)))
-
-
-def detectivity_blip_photoconductor_cm_Hz05_W(wavelength_nm, quantum_efficiency, background_flux_cm2_s):
-    """Background-limited D* of a photoconductor, (lambda / 2hc) sqrt(eta / Q_B) [cm Hz^1/2 W^-1].
-
-    g-r noise of the background generation, 4 q^2 g^2 eta Q_B A: sqrt(2)
-    below a photodiode (Rogalski 2011, ch. 3 and 9; from memory).
-    wavelength_nm [nm]; quantum_efficiency [-]; background_flux_cm2_s:
-    incident background photon flux Q_B [cm^-2 s^-1].
-    """
-    lam_cm = _arr(wavelength_nm) * 1e-7
-    with np.errstate(divide="ignore"):
-        return lam_cm / (2.0 * h_J_s * c_m_s * 100.0) * np.sqrt(_arr(quantum_efficiency) / _arr(background_flux_cm2_s))
-
-
 def detectivity_blip_cm_Hz05_W(responsivity_A_W, absorbed_background_flux_cm2_s, gain=1.0, photoconductor=False):
     """D*_BLIP of a detector of known signal responsivity, for any signal spectrum [cm Hz^1/2 W^-1].
 
@@ -447,9 +403,11 @@ def detectivity_blip_cm_Hz05_W(responsivity_A_W, absorbed_background_flux_cm2_s,
     with Phi_B = integral eta(lambda) Q_B(lambda) dlambda the absorbed
     background photon flux.  For a line signal (R = eta g q lambda / hc) and a
     QE flat over the background band (Phi_B = eta Q_B) these are the textbook
-    forms `detectivity_blip_photodiode_cm_Hz05_W` and
-    `detectivity_blip_photoconductor_cm_Hz05_W`; for a broadband signal R is the
-    signal current over the signal power.  Infinite (null in files) without a background.
+    forms (lambda / hc) sqrt(eta / (2 Q_B)) (photodiode) and (lambda / 2hc)
+    sqrt(eta / Q_B) (photoconductor, sqrt(2) lower: recombination noise)
+    (A. Rogalski, Infrared Detectors, 2nd ed., CRC 2011, ch. 3; from memory);
+    for a broadband signal R is the signal current over the signal power.
+    Infinite (null in files) without a background.
 
     responsivity_A_W [A/W]; absorbed_background_flux_cm2_s [cm^-2 s^-1];
     gain [-] (photoconductor; 1 for a photodiode); photoconductor [-].
@@ -467,7 +425,7 @@ def detectivity_blip_cm_Hz05_W(responsivity_A_W, absorbed_background_flux_cm2_s,
 def built_in_potential_V(T_K, acceptors_cm3, donors_cm3, ni_cm3, bandgap_eV):
     """Built-in potential of an abrupt p-n junction V_bi = (kT/q) ln(N_A N_D / n_i^2) [V].
 
-    Sze & Ng 2007, eq. 2.10 (from memory); non-degenerate statistics, so the
+    Sze & Ng 2007, sec. 2.2 (from memory); non-degenerate statistics, so the
     result is capped at Eg/q (a heavily doped side is degenerate; the junction
     cannot build up more than the gap) and floored at 0.
     T_K [K]; acceptors_cm3, donors_cm3: dopings of the two sides [cm^-3];
@@ -478,16 +436,39 @@ def built_in_potential_V(T_K, acceptors_cm3, donors_cm3, ni_cm3, bandgap_eV):
     return np.clip(v, 0.0, _arr(bandgap_eV))
 
 
+def forward_bias_limit_V(built_in_V, T_K):
+    """Highest forward bias the junction formulas accept, V_bi - 3 kT/q [V].
+
+    The abrupt-junction (depletion) approximation and the ideal-diode law need a
+    barrier of a few kT left; at and above V_bi the junction is gone and
+    J0 e^{qV/kT} grows without physical limit (series resistance and high
+    injection, not modelled, take over).  3 kT is our margin (the depletion
+    approximation errs by about kT/q in V_bi - V; Sze & Ng 2007 sec. 2.2, from
+    memory).  built_in_V [V]; T_K [K].
+    """
+    return _arr(built_in_V) - 3.0 * k_B_eV_K * _arr(T_K)
+
+
 def depletion_width_cm(permittivity, built_in_V, bias_V, acceptors_cm3, donors_cm3):
     """Depletion width of an abrupt junction W = sqrt(2 eps (V_bi - V) (N_A + N_D) / (q N_A N_D)) [cm].
 
-    Sze & Ng 2007, eq. 2.24 (from memory); zero where V >= V_bi.
+    Sze & Ng 2007, sec. 2.2 (from memory); zero where V >= V_bi.
     permittivity: relative permittivity [-]; built_in_V [V]; bias_V: applied
     bias, negative = reverse [V]; acceptors_cm3, donors_cm3 [cm^-3].
     """
     Na, Nd = _arr(acceptors_cm3), _arr(donors_cm3)
     dv = np.maximum(_arr(built_in_V) - _arr(bias_V), 0.0)
     return np.sqrt(2.0 * _arr(permittivity) * eps0_F_cm * dv * (1.0 / Na + 1.0 / Nd) / q_C)
+
+
+def depletion_saturation_mA_cm2(ni_cm3, depletion_width_cm, generation_lifetime_s):
+    """Generation current density of a depleted layer, q n_i W_dep / tau_g [mA/cm^2].
+
+    The reverse saturation of the Sah-Noyce-Shockley current
+    (`depletion_current_sah_noyce_shockley_mA_cm2`).  tau_g = inf gives 0.
+    ni_cm3 [cm^-3]; depletion_width_cm [cm]; generation_lifetime_s [s].
+    """
+    return 1e3 * q_C * _arr(ni_cm3) * _arr(depletion_width_cm) / _arr(generation_lifetime_s)
 
 
 def depletion_current_sah_noyce_shockley_mA_cm2(ni_cm3, depletion_width_cm, generation_lifetime_s, bias_V, T_K):
@@ -507,7 +488,7 @@ def depletion_current_sah_noyce_shockley_mA_cm2(ni_cm3, depletion_width_cm, gene
     ni_cm3 [cm^-3]; depletion_width_cm [cm]; generation_lifetime_s [s];
     bias_V: applied bias [V]; T_K [K].
     """
-    j_sat = 1e3 * q_C * _arr(ni_cm3) * _arr(depletion_width_cm) / _arr(generation_lifetime_s)
+    j_sat = depletion_saturation_mA_cm2(ni_cm3, depletion_width_cm, generation_lifetime_s)
     return j_sat * np.expm1(_arr(bias_V) / (2.0 * k_B_eV_K * _arr(T_K)))
 
 
@@ -619,11 +600,15 @@ def _log_ratio(fn, T):
 
 
 def background_limit_temperature_K(fn, T_low_K, T_high_K, points=256, xtol_K=1e-6):
-    """Temperature at which thermal generation equals background generation [K].
+    """Temperature at which the background noise equals all other noise together [K].
 
-    fn(T) takes an array of temperatures [K] and returns (thermal, background)
-    generation rates [cm^-3 s^-1] (or any pair of positive figures whose ratio
-    crosses 1 at the limit) of the same shape.  d(T) = ln G_th - ln G_bg
+    fn(T) takes an array of temperatures [K] and returns (other, background) of
+    the same shape: any pair of positive figures of one kind whose ratio
+    crosses 1 at the limit.  The pipeline (`optogen.runner.background_limit`)
+    passes noise currents [A/Hz^1/2]: the total noise without the background
+    term (`noise_without_A_Hz05`) and the background noise term; thermal and
+    background generation rates [cm^-3 s^-1] serve for a g-r-limited
+    photoconductor.  d(T) = ln(other) - ln(background)
     is scanned on `points` temperatures in one vectorised call; the highest
     sign change between two neighbouring scan points where d is a number (the
     temperature a cooled pixel reaches first on the way down) is refined with
@@ -636,8 +621,8 @@ def background_limit_temperature_K(fn, T_low_K, T_high_K, points=256, xtol_K=1e-
     T_low_K, T_high_K: scan range, 0 < T_low < T_high [K]; points: scan
     resolution [-]; xtol_K: root tolerance [K].
     """
-    lo = check_range("background_limit.T_low_K", T_low_K, 0.0, low_open=True, unit="K")
-    hi = check_range("background_limit.T_high_K", T_high_K, lo, low_open=True, unit="K (and > T_low_K)")
+    lo = check_range("T_low_K", T_low_K, 0.0, low_open=True, unit="K")
+    hi = check_range("T_high_K", T_high_K, lo, low_open=True, unit="K (and > T_low_K)")
     T = np.linspace(lo, hi, int(points))
     d = _log_ratio(fn, T)
     ok = np.flatnonzero(~np.isnan(d))
@@ -683,18 +668,54 @@ def _signal_figures(i_sig, i_bg, power_W, noise, area_cm2, gain, photoconductor)
     with np.errstate(divide="ignore", invalid="ignore"):
         ratio = np.where(np.isfinite(blip), d_star / blip, np.nan)
     bg = noise["noise_background_A_Hz05"]
-    rest = np.sqrt(np.maximum(total**2 - bg**2, 0.0))
     out = {"responsivity_A_W": resp, **noise, "noise_total_A_Hz05": total,
            "detectivity_cm_Hz05_W": d_star, "detectivity_blip_cm_Hz05_W": np.where(np.isfinite(blip), blip, np.nan),
-           "detectivity_over_blip": ratio, "background_limited": background_limited(rest, bg),
+           "detectivity_over_blip": ratio, "background_limited": background_limited(noise_without_A_Hz05(total, bg), bg),
            "background_absorbed_flux_cm2_s": phi_bg}
     return out
+
+
+#: drift velocity above which carriers are hot and the mobility falls with field: the
+#: saturation velocity of the common semiconductors is about 1e7 cm/s (Si, GaAs; Sze & Ng 2007
+#: sec. 1.5, from memory; common practice) [cm/s]
+SATURATION_VELOCITY_cm_s = 1e7
+
+
+def high_field_caution(bias_V, electrode_spacing_cm, majority_mobility_cm2_Vs, minority_mobility_cm2_Vs,
+                       tau_s):
+    """True where the photoconductive gain tau / t_tr is not to be trusted [bool].
+
+    Two criteria, either suffices:
+    * sweep-out: the minority drift length mu_min E tau exceeds the electrode
+      spacing, i.e. the minority carriers reach a contact within their lifetime;
+      the gain then saturates near (mu_e + mu_h) / (2 mu_min) instead of growing
+      with the bias (E. S. Rittner, in Photoconductivity Conference, Wiley 1956;
+      Rogalski 2011 ch. 9; both from memory);
+    * hot carriers: the drift velocity mu E of either carrier exceeds
+      `SATURATION_VELOCITY_cm_s`, where the low-field mobility no longer holds.
+    bias_V [V]; electrode_spacing_cm [cm]; majority_/minority_mobility_cm2_Vs
+    [cm^2 V^-1 s^-1]; tau_s: effective lifetime [s].
+    """
+    L = _spacing(electrode_spacing_cm)
+    E = electric_field_V_cm(bias_V, L)
+    mu_maj, mu_min = _arr(majority_mobility_cm2_Vs), _arr(minority_mobility_cm2_Vs)
+    sweep_out = mu_min * E * _arr(tau_s) > L
+    hot = np.maximum(mu_maj, mu_min) * E > SATURATION_VELOCITY_cm_s
+    return sweep_out | hot
+
+
+def _ln_densities(n0, p0, ln_n0_cm3, ln_p0_cm3):
+    """ln n0, ln p0: the given logarithms, else from the densities (-inf where one underflowed)."""
+    with np.errstate(divide="ignore"):
+        ln_n0 = np.log(n0) if ln_n0_cm3 is None else _arr(ln_n0_cm3)
+        ln_p0 = np.log(p0) if ln_p0_cm3 is None else _arr(ln_p0_cm3)
+    return ln_n0, ln_p0
 
 
 def photoconductor_figures(detector, thickness_cm, T_K, n0_cm3, p0_cm3, n_cm3, p_cm3,
                            mu_dark_cm2_Vs, mu_light_cm2_Vs, tau_eff_s, tau_dark_s,
                            optical_generation_cm3_s, background_generation_cm3_s,
-                           irradiance_W_m2):
+                           irradiance_W_m2, *, ln_n0_cm3=None, ln_p0_cm3=None):
     """The detector figures of a photoconductor bar, as a dict of arrays (units in the keys).
 
     detector: `Detector` in photoconductor mode; thickness_cm [cm]; T_K [K];
@@ -702,33 +723,41 @@ def photoconductor_figures(detector, thickness_cm, T_K, n0_cm3, p0_cm3, n_cm3, p
     operating point (signal + background) [cm^-3]; mu_dark_cm2_Vs,
     mu_light_cm2_Vs: (mu_e, mu_h) pairs of the dark and illuminated states
     [cm^2 V^-1 s^-1]; tau_eff_s: effective lifetime at the operating point [s];
-    tau_dark_s: low-injection lifetime for the thermal generation [s];
-    optical_generation_cm3_s, background_generation_cm3_s: average generation
-    by the source and by the background [cm^-3 s^-1]; irradiance_W_m2: incident
-    irradiance of the source on the bar [W m^-2].
+    tau_dark_s: dark low-injection effective lifetime (bulk and both surfaces:
+    the bar's thermal generation happens everywhere in it) for the thermal
+    generation [s]; optical_generation_cm3_s, background_generation_cm3_s:
+    average generation by the source and by the background [cm^-3 s^-1];
+    irradiance_W_m2: incident irradiance of the source on the bar [W m^-2];
+    ln_n0_cm3, ln_p0_cm3: ln of the dark densities, for the minority ratio
+    where a density underflows (default: from n0, p0) [ln cm^-3].
 
     Currents: dark I0 = sigma_0 (V/L) w t; total photocurrent from
     sigma_light - sigma_dark (`bar_current_A`); signal and background
     photocurrents, the linear terms I = q g G (L w t) of each generation with
     the gain g = tau_eff / t_tr of the operating point (Rose 1963; Sze & Ng 2007
-    sec. 13.2).  Responsivity R = I_signal / P_signal, P on the area L w; null
+    sec. 13.2; from memory).  Responsivity R = I_signal / P_signal, P on the area L w; null
     without a source.  Noise (A/Hz^1/2, `gr_noise_photoconductor_A_Hz05`,
     `johnson_noise_A_Hz05`): g-r noise of the signal, of the background and of
     the thermal generation G_th, each 4 q^2 g^2 G (L w t); Johnson noise of the
     bar resistance at the operating point L / (sigma_light w t).
     D* = R sqrt(L w) / i_total; D*_BLIP = R / (2 q g sqrt(Phi_B)) with Phi_B =
     G_bg t the absorbed background flux (`detectivity_blip_cm_Hz05_W`).
+    `high_field_caution` flags sweep-out and hot carriers, where the gain is too high.
     """
     require_mode(detector, "photoconductor", "photoconductor_figures")
     L, w = detector.electrode_spacing_cm, detector.width_cm
     V, t = detector.bias_V, _arr(thickness_cm)
     n0, p0, n, p = (_arr(x) for x in (n0_cm3, p0_cm3, n_cm3, p_cm3))
+    ln_n0, ln_p0 = _ln_densities(n0, p0, ln_n0_cm3, ln_p0_cm3)
     sigma0 = conductivity_S_cm(n0, p0, *mu_dark_cm2_Vs)
     sigma = conductivity_S_cm(n, p, *mu_light_cm2_Vs)
     i_dark = bar_current_A(sigma0, V, L, w, t)
     i_ph = bar_current_A(sigma - sigma0, V, L, w, t)
-    t_tr = transit_time_s(L, _arr(mu_light_cm2_Vs[0]) + _arr(mu_light_cm2_Vs[1]), V)
+    mu_e, mu_h = _arr(mu_light_cm2_Vs[0]), _arr(mu_light_cm2_Vs[1])
+    t_tr = transit_time_s(L, mu_e + mu_h, V)
     gain = photoconductive_gain(tau_eff_s, t_tr)
+    n_type = ln_n0 >= ln_p0
+    caution = high_field_caution(V, L, np.where(n_type, mu_e, mu_h), np.where(n_type, mu_h, mu_e), tau_eff_s)
     area, volume = L * w, L * w * t
     power = _arr(irradiance_W_m2) * 1e-4 * area
     g_th = thermal_generation_cm3_s(n0, p0, tau_dark_s)
@@ -740,34 +769,45 @@ def photoconductor_figures(detector, thickness_cm, T_K, n0_cm3, p0_cm3, n_cm3, p
              "noise_thermal_A_Hz05": gr_noise_photoconductor_A_Hz05(g_th, volume, gain),
              "noise_johnson_A_Hz05": johnson_noise_A_Hz05(sigma * w * t / L, T_K)}
     figures = _signal_figures(i_sig, i_bg, power, noise, area, gain, True)
-    minority_ratio = np.where(n0 >= p0, p / p0, n / n0)
     return {
         "sigma_dark_S_cm": sigma0, "sigma_light_S_cm": sigma,
         "conductivity_contrast": conductivity_contrast(sigma, sigma0),
         "dark_current_A": i_dark, "signal_current_A": i_sig, "background_current_A": i_bg, "photocurrent_A": i_ph,
-        "transit_time_s": t_tr, "photoconductive_gain": gain,
-        "minority_ratio": minority_ratio,
+        "transit_time_s": t_tr, "photoconductive_gain": gain, "high_field_caution": caution,
+        "minority_ratio": minority_ratio(ln_n0, ln_p0, n, p),
         "thermal_generation_cm3_s": g_th, "optical_generation_cm3_s": g_opt,
         "background_generation_cm3_s": g_bg, **figures,
     }
 
 
 def photodiode_figures(detector, thickness_cm, T_K, ni_eff_cm3, n0_cm3, p0_cm3, n_cm3, p_cm3,
-                       minority_D_cm2_s, tau_dark_s, rear_S_cm_s, photocurrent_mA_cm2,
+                       minority_D_cm2_s, tau_bulk_s, rear_S_cm_s, photocurrent_mA_cm2,
                        optical_generation_cm3_s, background_generation_cm3_s, irradiance_W_m2, *,
-                       bandgap_eV, permittivity, electron_mass_m0):
+                       bandgap_eV, permittivity, electron_mass_m0, tau_srh_s=None,
+                       ln_n0_cm3=None, ln_p0_cm3=None, beyond_bias_limit="raise"):
     """The detector figures of a junction on this absorber (the base), units in the keys.
 
     Dark current, at the bias V, in two parts reported apart and summed:
     diffusion from the base, J0 (exp(qV/kT) - 1) with the thin-base J0
     (`j0_base_mA_cm2`, rear recombination velocity; thick-base J0 for
-    comparison; Shockley 1949; Sze & Ng 2007 eq. 2.64), and the depletion-region
-    current (`depletion_current_sah_noyce_shockley_mA_cm2`) over the width of
+    comparison; Shockley 1949; Sze & Ng 2007 sec. 2.3, from memory) and the
+    bulk lifetime of the base (SRH, radiative and Auger of the dark
+    low-injection state, `bulk_lifetime_s`): the front of the base is the
+    junction and the rear enters through S, so a lifetime that already holds
+    the surfaces would count them twice.  The depletion-region current
+    (`depletion_current_sah_noyce_shockley_mA_cm2`) over the width of
     an abrupt junction between the base (N = max(n0, p0), the majority density:
     the net doping when extrinsic, finite for an intrinsic base) and the junction side
     (detector.junction_side_doping_cm3, default JUNCTION_SIDE_DOPING_DEFAULT_cm3),
-    V_bi from both dopings, capped at the base thickness; generation lifetime
-    detector.generation_lifetime_s, else the dark low-injection lifetime.
+    V_bi from both dopings, capped at the base thickness.  Generation lifetime
+    tau_g: detector.generation_lifetime_s, else the SRH lifetime of the dark
+    base (tau_srh_s; inf without SRH centres: no depletion current).  We use
+    the SRH lifetime because it exists for any set of defects at any level;
+    for one mid-gap level the textbook generation lifetime is tau_n0 + tau_p0
+    (Sze & Ng 2007 sec. 2.4.3, from memory), which in an extrinsic base is
+    1 + tau_n0/tau_p0 (n-type) times the SRH lifetime, so the default
+    depletion current is high by up to that factor (2 for equal capture
+    times) there; set generation_lifetime_s for a measured value.
     R0A from both (`r0a_ohm_cm2`).  Signal current: every photon absorbed from
     the source collected (the generation layer's photocurrent, an upper bound);
     background current likewise from G_bg W.  Responsivity = J_signal / irradiance.
@@ -777,59 +817,87 @@ def photodiode_figures(detector, thickness_cm, T_K, ni_eff_cm3, n0_cm3, p0_cm3, 
     i_total; D*_BLIP = R / (q sqrt(2 Phi_B)).  A band-to-band tunnelling
     estimate (`tunnelling_moll1964_mA_cm2`) flags junctions where it would
     exceed the dark current (`tunnelling_may_dominate`); it is not added.
+    A forward bias (V > 0) at or above `forward_bias_limit_V` (V_bi - 3kT/q) raises
+    InputError naming detector.bias_V (beyond_bias_limit="raise"), or gives NaN
+    at those points ("nan", for scans over temperature).
 
     thickness_cm: base width [cm]; T_K [K]; ni_eff_cm3 [cm^-3]; n0_cm3, p0_cm3,
     n_cm3, p_cm3: dark and illuminated densities [cm^-3]; minority_D_cm2_s:
-    minority diffusivity in the base [cm^2/s]; tau_dark_s: low-injection lifetime [s];
-    rear_S_cm_s [cm/s]; photocurrent_mA_cm2: signal photocurrent [mA/cm^2];
-    optical_/background_generation_cm3_s [cm^-3 s^-1]; irradiance_W_m2: incident
-    irradiance of the source [W m^-2]; bandgap_eV [eV]; permittivity [-];
-    electron_mass_m0: conduction-band mass for the tunnelling estimate [m0].
+    minority diffusivity in the base [cm^2/s]; tau_bulk_s: bulk low-injection
+    lifetime of the base [s]; rear_S_cm_s [cm/s]; photocurrent_mA_cm2: signal
+    photocurrent [mA/cm^2]; optical_/background_generation_cm3_s [cm^-3 s^-1];
+    irradiance_W_m2: incident irradiance of the source [W m^-2]; bandgap_eV [eV];
+    permittivity [-]; electron_mass_m0: conduction-band mass for the tunnelling
+    estimate [m0]; tau_srh_s: SRH lifetime for the default tau_g (None: tau_bulk_s) [s];
+    ln_n0_cm3, ln_p0_cm3 [ln cm^-3]: as in `photoconductor_figures`.
     """
     require_mode(detector, "photodiode", "photodiode_figures")
     T, V, A = _arr(T_K), float(detector.bias_V), detector.area_cm2
     n0, p0, W = _arr(n0_cm3), _arr(p0_cm3), _arr(thickness_cm)
+    ln_n0, ln_p0 = _ln_densities(n0, p0, ln_n0_cm3, ln_p0_cm3)
     N = np.maximum(n0, p0)        # majority density: the net doping when extrinsic, n_i when intrinsic
     ni = _arr(ni_eff_cm3)
-    j0_thick = j0_thick_base_mA_cm2(ni, N, minority_D_cm2_s, tau_dark_s)
-    j0_thin = j0_base_mA_cm2(ni, N, minority_D_cm2_s, tau_dark_s, W, rear_S_cm_s)
-    x = V / (k_B_eV_K * T)
     # junction: base doping N against the junction side
     nj = detector.junction_side_doping_cm3 or JUNCTION_SIDE_DOPING_DEFAULT_cm3
     vbi = built_in_potential_V(T, N, nj, ni, bandgap_eV)
-    w_v = np.minimum(depletion_width_cm(permittivity, vbi, V, N, nj), W)
+    limit = np.broadcast_to(forward_bias_limit_V(vbi, T), np.broadcast(vbi, T, W).shape)
+    beyond = (V > 0.0) & (V >= limit)       # zero and reverse bias are always allowed
+    if np.any(beyond) and beyond_bias_limit == "raise":
+        i = int(np.flatnonzero(np.ravel(beyond))[0])
+        Ts = np.broadcast_to(T, limit.shape).ravel()
+        where = f"at absorber.temperature_K = {Ts[i]:.6g} K"
+        if limit.size > 1:
+            where += f" (point {i + 1} of {limit.size}; the lowest limit over the points is {limit.min():.4g} V)"
+        raise InputError("detector.bias_V", V,
+                         f"reverse, zero, or forward below V_bi - 3kT/q = {float(limit.ravel()[i]):.4g} V", where)
+    Vc = np.minimum(V, limit)     # beyond the limit ("nan" mode) the figures are replaced by NaN below
+    tau_b = _arr(tau_bulk_s)
+    j0_thick = j0_thick_base_mA_cm2(ni, N, minority_D_cm2_s, tau_b)
+    j0_thin = j0_base_mA_cm2(ni, N, minority_D_cm2_s, tau_b, W, rear_S_cm_s)
+    x = Vc / (k_B_eV_K * T)
+    w_v = np.minimum(depletion_width_cm(permittivity, vbi, Vc, N, nj), W)
     w_0 = np.minimum(depletion_width_cm(permittivity, vbi, 0.0, N, nj), W)
-    tau_g = _arr(tau_dark_s) if detector.generation_lifetime_s is None else _arr(detector.generation_lifetime_s)
-    jgr_sat = 1e3 * q_C * ni * w_v / tau_g
+    if detector.generation_lifetime_s is not None:
+        tau_g = _arr(detector.generation_lifetime_s)
+    else:
+        tau_g = tau_b if tau_srh_s is None else _arr(tau_srh_s)
+    jgr_sat = depletion_saturation_mA_cm2(ni, w_v, tau_g)
+    jgr_0 = depletion_saturation_mA_cm2(ni, w_0, tau_g)
     j_diff = j0_thin * np.abs(np.expm1(x))
-    j_gr = np.abs(depletion_current_sah_noyce_shockley_mA_cm2(ni, w_v, tau_g, V, T))
+    j_gr = np.abs(depletion_current_sah_noyce_shockley_mA_cm2(ni, w_v, tau_g, Vc, T))
     j_dark = j_diff + j_gr                                    # same sign at any bias
-    r0a = r0a_ohm_cm2(T, j0_thin, 1e3 * q_C * ni * w_0 / tau_g)
+    r0a = r0a_ohm_cm2(T, j0_thin, jgr_0)
     # tunnelling estimate at the peak field of the abrupt junction
-    v_j = np.maximum(vbi - V, 0.0)
+    v_j = np.maximum(vbi - Vc, 0.0)
     with np.errstate(divide="ignore", invalid="ignore"):
         field = np.where(w_v > 0, 2.0 * v_j / np.where(w_v > 0, w_v, 1.0), 0.0)
     j_tun = tunnelling_moll1964_mA_cm2(bandgap_eV, electron_mass_m0, field, max(-V, 0.0) + k_B_eV_K * T)
     # zero bias: compare dJ/dV, i.e. the tunnelling current over kT/q against the dark currents' (J0 + J_gr0/2)
-    scale = np.where(V == 0.0, j0_thin + 0.5e3 * q_C * ni * w_0 / tau_g, j_dark)
+    scale = np.where(V == 0.0, j0_thin + 0.5 * jgr_0, j_dark)
     i_sig = _arr(photocurrent_mA_cm2) * 1e-3 * A
     g_bg = _arr(background_generation_cm3_s)
     i_bg = q_C * g_bg * W * A
-    shot_dark, johnson = photodiode_thermal_noise_A_Hz05(T, V, j0_thin, jgr_sat, A)
+    shot_dark, johnson = photodiode_thermal_noise_A_Hz05(T, Vc, j0_thin, jgr_sat, A)
     noise = {"noise_signal_A_Hz05": shot_noise_A_Hz05(i_sig), "noise_background_A_Hz05": shot_noise_A_Hz05(i_bg),
              "noise_thermal_A_Hz05": shot_dark, "noise_johnson_A_Hz05": johnson}
     figures = _signal_figures(i_sig, i_bg, _arr(irradiance_W_m2) * 1e-4 * A, noise, A, 1.0, False)
-    g_th = thermal_generation_cm3_s(n0, p0, tau_dark_s)
-    return {
+    g_th = thermal_generation_cm3_s(n0, p0, tau_b)
+    out = {
         "dark_current_density_mA_cm2": j_dark, "diffusion_current_density_mA_cm2": j_diff,
         "depletion_current_density_mA_cm2": j_gr,
         "dark_current_density_thick_base_mA_cm2": j0_thick * np.abs(np.expm1(x)) + j_gr,
         "j0_thick_base_mA_cm2": j0_thick, "j0_thin_base_mA_cm2": j0_thin, "j0_depletion_mA_cm2": jgr_sat,
-        "built_in_potential_V": vbi, "depletion_width_um": w_v * 1e4, "generation_lifetime_s": tau_g,
+        "built_in_potential_V": vbi, "forward_bias_limit_V": limit, "depletion_width_um": w_v * 1e4,
+        "generation_lifetime_s": tau_g, "bulk_lifetime_s": tau_b,
         "r0a_ohm_cm2": r0a, "tunnelling_estimate_mA_cm2": j_tun, "tunnelling_may_dominate": j_tun > scale,
         "dark_current_A": j_dark * 1e-3 * A, "signal_current_A": i_sig, "background_current_A": i_bg,
         "photocurrent_A": i_sig + i_bg,
-        "minority_ratio": np.where(n0 >= p0, _arr(p_cm3) / p0, _arr(n_cm3) / n0),
+        "minority_ratio": minority_ratio(ln_n0, ln_p0, n_cm3, p_cm3),
         "thermal_generation_cm3_s": g_th, "optical_generation_cm3_s": _arr(optical_generation_cm3_s),
         "background_generation_cm3_s": g_bg, **figures,
     }
+    if np.any(beyond):
+        for key, v in out.items():
+            if key not in ("built_in_potential_V", "forward_bias_limit_V") and np.asarray(v).dtype.kind == "f":
+                out[key] = np.where(beyond, np.nan, v)
+    return out

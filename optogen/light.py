@@ -246,18 +246,17 @@ def blackbody_grid_nm(temperature_K, points=2000):
     return np.geomspace(lam_x1_nm / 50.0, lam_x1_nm / 0.01, points)
 
 
-F_NUMBER_MIN, F_NUMBER_MAX = 0.5, 100.0   #: accepted f-numbers: (0.5, 100] [-]
-
-
 def half_angle_from_f_number_deg(f_number, field="light.f_number"):
     """Cone half-angle theta = arctan(1 / (2F)) of an f/F aperture [deg].
 
     Then sin^2(theta) = 1 / (1 + 4 F^2), the usual cold-shield factor (A. Rogalski,
     Infrared Detectors, 2nd ed., CRC 2011, ch. 3; from memory).  f_number in
-    (0.5, 100] [-]: f/0.5 and faster are outside the paraxial relation, above 100
-    the aperture is a pinhole.
+    (F_NUMBER_MIN, F_NUMBER_MAX] = (0.5, 100] of `optogen.schema` [-]: f/0.5 is the
+    aplanatic limit, where sin(theta) = 1/(2F) reaches 1 (a full hemisphere; no
+    faster f-number exists), above 100 the aperture is a pinhole.  The cone used
+    here, tan(theta) = 1/(2F), is the common cold-shield form.
     """
-    F = check_range(field, f_number, F_NUMBER_MIN, F_NUMBER_MAX, low_open=True, unit="(f-number)")
+    F = check_range(field, f_number, _schema.F_NUMBER_MIN, _schema.F_NUMBER_MAX, low_open=True, unit="(f-number)")
     return math.degrees(math.atan(1.0 / (2.0 * F)))
 
 

@@ -140,6 +140,8 @@ def cautions(res) -> list[str]:
         out.append(CAUTION_COLD)
     if "tunnelling_may_dominate" in ds and np.any(ds["tunnelling_may_dominate"].values == True):  # noqa: E712
         out.append(CAUTION_TUNNELLING)
+    if "high_field_caution" in ds and np.any(ds["high_field_caution"].values == True):  # noqa: E712
+        out.append(CAUTION_HIGH_FIELD)
     return out
 
 
@@ -249,6 +251,10 @@ _DETECTOR_HEADLINE = (
 CAUTION_TUNNELLING = ("Tunnelling: the band-to-band tunnelling estimate exceeds the dark current at this "
                       "junction field (narrow gap, heavy doping or strong bias); the dark current, R0A and D* "
                       "leave it out and are then too optimistic.")
+CAUTION_HIGH_FIELD = ("High field: at this photoconductor bias the minority carriers are swept to a contact "
+                      "within their lifetime (drift length mu E tau above the electrode spacing) or drift "
+                      "faster than about 1e7 cm/s; the gain tau/t_tr, responsivity and D* assume neither and "
+                      "are then too high.")
 
 
 def _detector_summary(det) -> list[str]:
@@ -278,6 +284,9 @@ def _sweep_summary(res) -> list[str]:
                  "responsivity_A_W", "photoconductive_gain", "conductivity_contrast", "minority_ratio"):
         if name in ds:
             v = ds[name].values.astype(float)
+            if np.isnan(v).all():           # e.g. a responsivity without a source: null at every point
+                out.append(f"  {name:<16} {'-':>12}")
+                continue
             out.append(f"  {name:<16} {np.nanmin(v):>12.4g} .. {np.nanmax(v):<12.4g}")
     if "background_limit_note" in ds.attrs:
         out.append(f"  background limit: {ds.attrs['background_limit_note']}")
@@ -288,9 +297,10 @@ def _sweep_summary(res) -> list[str]:
             out += _point_table(ds, ["signal_current_A", "background_current_A", "dark_current_A",
                                      "noise_total_A_Hz05", "responsivity_A_W", "detectivity_cm_Hz05_W",
                                      "detectivity_blip_cm_Hz05_W", "detectivity_over_blip",
-                                     "background_limited"], "detector")
+                                     "background_limited"], "detector", units="units in the column heads")
             out += _point_table(ds, ["noise_signal_A_Hz05", "noise_background_A_Hz05", "noise_thermal_A_Hz05",
-                                     "noise_johnson_A_Hz05", "noise_total_A_Hz05"], "detector noise", "A Hz^-1/2")
+                                     "noise_johnson_A_Hz05", "noise_total_A_Hz05"], "detector noise",
+                                units="A/Hz^1/2")
     return out
 
 
@@ -303,8 +313,8 @@ _SHORT = {"n0_cm3": "n0", "n_cm3": "n", "p0_cm3": "p0", "p_cm3": "p", "np_over_n
           "background_generation_cm3_s": "G_backgr.", "background_limited": "bg-limited",
           "responsivity_A_W": "R (A/W)", "detectivity_cm_Hz05_W": "D* (Jones)",
           "signal_current_A": "I_sig (A)", "background_current_A": "I_bg (A)", "dark_current_A": "I_dark (A)",
-          "noise_total_A_Hz05": "i_n (A/rtHz)", "detectivity_blip_cm_Hz05_W": "D*_BLIP",
-          "detectivity_over_blip": "D*/BLIP", "noise_signal_A_Hz05": "signal", "noise_background_A_Hz05": "background",
+          "noise_total_A_Hz05": "i_n (A/Hz^1/2)", "detectivity_blip_cm_Hz05_W": "D*_BLIP",
+          "detectivity_over_blip": "D*/BLIP", "high_field_caution": "high field", "noise_signal_A_Hz05": "signal", "noise_background_A_Hz05": "background",
           "noise_thermal_A_Hz05": "thermal", "noise_johnson_A_Hz05": "Johnson"}
 
 

@@ -13,6 +13,7 @@ spectrum, the optical data) is built once per slow-key group.
 """
 from __future__ import annotations
 
+import contextvars
 import dataclasses
 import datetime as _dt
 import itertools
@@ -25,7 +26,7 @@ import numpy as np
 import xarray as xr
 
 from . import __version__, schema
-from .errors import InputError, check_range
+from .errors import InputError, check_range, relabel
 from .scenario import Scenario, unit_of
 
 LIGHT_SCALING_KEYS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
@@ -113,18 +114,11 @@ def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
     background = None
     if "background" in sc.data:
         from . import light
-        bg = sc.section("background")
-        if "f_number" in bg and "field_of_view_deg" in bg:
-            raise InputError("background.f_number", bg["f_number"],
-                             "either background.f_number or background.field_of_view_deg, not both",
-                             f"field_of_view_deg = {bg['field_of_view_deg']!r} is also given")
-        try:
+        bg = sc.section("background")       # f_number with field_of_view_deg: a schema rule (_rule_background)
+        with relabel({"light.": "background."}):
             background = light.blackbody(bg.get("temperature_K", 300.0), bg.get("field_of_view_deg", 90.0),
                                          bg.get("emissivity", 1.0), f_number=bg.get("f_number"),
                                          cuton_nm=bg.get("cuton_nm"), cutoff_nm=bg.get("cutoff_nm"))
-        except InputError as exc:
-            raise InputError(exc.field.replace("light.", "background.", 1), exc.value, exc.allowed,
-                             exc.hint) from None
         if "cuton_nm" in bg or "cutoff_nm" in bg:
             _check_filter_band(sc, mat, background.wavelength_nm[0], background.wavelength_nm[-1])
     recomb = None
@@ -146,6 +140,8 @@ def _check_filter_band(sc: Scenario, material, lo_nm: float, hi_nm: float) -> No
     temps = [np.atleast_1d(a.values) for a in sc.sweep if a.key == "absorber.temperature_K"]
     T = np.concatenate(temps) if temps else np.array([float(sc.get("absorber.temperature_K", 300.0))])
     T = T[np.isfinite(T) & (T > 0)]
+    if T.size:
+        T = T[np.asarray(material.bandgap_eV(T), dtype=float) > 0]    # a closed gap is its own InputError later
     if T.size == 0:
         return
     cut = float(np.max(hc_eV_nm / np.asarray(material.bandgap_eV(T), dtype=float)))
@@ -344,12 +340,16 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
             frac = _inverted_fraction(setup, g, inv, np.ravel(ss.splitting_eV))
             inverted = np.asarray(ss.converged) & (frac > INVERSION_LIMIT)
             if np.any(inverted):
+                why = _inversion_reason(setup, g, inv, eq, ss, inverted)
+                degenerate = np.asarray(ss.degenerate, dtype=bool).copy()
                 ss = _invalidate(ss, inverted)
+                # degeneracy is a fact of the solved state, kept on a flagged point
+                ss = dataclasses.replace(ss, degenerate=degenerate if degenerate.ndim else degenerate[()])
                 notes.append(f"{int(inverted.sum())} operating point(s) are outside the model: more than "
                              f"{INVERSION_LIMIT:.0%} of the absorbed photons (up to {float(frac.max()):.0%}) have an "
                              "energy below the quasi-Fermi-level splitting, where the absorber would amplify or "
                              "be transparent rather than absorb (population inversion, or band filling in "
-                             "degenerate material; the absorption model has neither)")
+                             f"degenerate material; the absorption model has neither): {why}")
         out["steady_state"] = _block(ss.to_dict(), n)
         extra["steady_state"] = ss
         out["steady_state"]["converged"] = np.asarray(ss.converged) * ones
@@ -357,6 +357,13 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
         if notes:
             extra["warnings"] = ["; ".join(notes) + "; such points are flagged converged = false (did not "
                                  "converge / outside the model) and their levels are null"]
+            if not details:           # a sweep keeps no per-chunk notes: say why here, once per chunk
+                warnings.warn(PhysicsNoteWarning(extra["warnings"][0]), stacklevel=2)
+        falling = (np.asarray(ss.converged) & (np.asarray(ss.generation_cm3_s) > 0)
+                   & (np.nan_to_num(ss.splitting_eV) > 0) & np.isnan(ss.implied_ff))
+        if np.any(falling) and not details:     # a single point says it with its implied J-V (_point_details)
+            warnings.warn(PhysicsNoteWarning(_FALLING_SPLITTING_NOTE.format(
+                what=f"implied_ff is null at {int(falling.sum())} point(s)")), stacklevel=2)
         above = np.asarray(ss.splitting_eV > ss.effective_gap_eV)
         if np.any(above):
             warnings.warn(DegenerateWarning(
@@ -374,6 +381,36 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
     if details:
         out["_details"] = extra
     return out
+
+
+def _inversion_reason(setup: Setup, g, inv, eq, ss, inverted) -> str:
+    """Why the first point in `inverted` is outside the model, with its numbers (one clause) [-].
+
+    Dark Fermi level within 3 kT of a band or inside it: band filling (degenerate dark carriers);
+    else the absorbed photons' median energy against the gap (sub-gap tail) and the splitting.
+    """
+    from .constants import hc_eV_nm, kT_eV
+    from .generation import trapezoid_weights
+    from .steady_state import DEGENERATE_KT
+    i = int(np.flatnonzero(np.ravel(inverted))[0])
+    pick = (lambda a: float(np.ravel(np.broadcast_to(np.asarray(a, dtype=float), np.shape(inverted)))[i]))
+    kT = float(kT_eV(pick(eq.temperature_K)))
+    ef, gap, split = pick(eq.fermi_level_eV), pick(eq.effective_gap_eV), pick(ss.splitting_eV)
+    wl = np.asarray(g.wavelength_nm, dtype=float)
+    row = np.reshape(g.absorbed_photon_flux_cm2_s_nm, (-1, wl.size))[int(np.ravel(inv)[i])] * trapezoid_weights(wl)
+    e_asc, cum = (hc_eV_nm / wl)[::-1], np.cumsum(row[::-1])
+    e_med = float(e_asc[min(int(np.searchsorted(cum, 0.5 * cum[-1])), wl.size - 1)])
+    where = f"at {pick(eq.temperature_K):g} K"
+    if e_med < gap:
+        return (f"{where} the light is absorbed only in the sub-gap tail of the absorption model (median absorbed "
+                f"photon energy {e_med:.4g} eV, gap {gap:.4g} eV), and the splitting it would cause, {split:.4g} eV, "
+                "exceeds those photon energies")
+    if ef > gap - DEGENERATE_KT * kT or ef < DEGENERATE_KT * kT:
+        band, depth = ("conduction", ef - gap) if ef > gap - DEGENERATE_KT * kT else ("valence", -ef)
+        return (f"{where} the dark carriers are already degenerate (Fermi level {depth:+.3g} eV from the {band} "
+                f"band edge, gap {gap:.4g} eV): the filled band blocks the absorption of the light (median absorbed "
+                f"photon energy {e_med:.4g} eV) and the splitting would be {split:.4g} eV")
+    return f"{where} the splitting would be {split:.4g} eV, above the median absorbed photon energy {e_med:.4g} eV"
 
 
 #: largest fraction of the absorbed photons allowed below the splitting [-] (our choice:
@@ -426,7 +463,7 @@ class PhysicsNoteWarning(UserWarning):
 def _warn_unabsorbed(setup: Setup, T, gen, light) -> None:
     """Warn where incident light is not absorbed at all, naming the light against the cut-off wavelength."""
     from .constants import hc_eV_nm
-    none = (np.asarray(gen["photocurrent_mA_cm2"]) <= 0) & (np.asarray(light["irradiance_W_m2"]) > 0)
+    none = (np.asarray(gen["average_cm3_s"]) <= 0) & (np.asarray(light["irradiance_W_m2"]) > 0)
     spec = setup.spectrum
     lit = spec.irradiance_W_m2_nm > 0
     if not np.any(none) or not np.any(lit):
@@ -612,7 +649,9 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
     rec = setup.recombination
     n = T.size
     n0, p0 = np.ravel(eq.n0_cm3), np.ravel(eq.p0_cm3)
-    tau_dark = np.ravel(solve(setup.material, eq, rec, np.zeros(n), setup.thickness_cm, with_ff=False).tau_eff_s)
+    ln_n0, ln_p0 = np.ravel(eq.ln_n0_cm3), np.ravel(eq.ln_p0_cm3)
+    dark = solve(setup.material, eq, rec, np.zeros(n), setup.thickness_cm, with_ff=False)
+    tau_dark = np.ravel(dark.tau_eff_s)
     gen = out.get("generation", {})
     g_opt = gen.get("average_cm3_s", np.zeros(n))
     g_bg = gen.get("background_average_cm3_s", np.zeros(n))
@@ -623,18 +662,23 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
         mu_light = _mobilities(setup, T, nd, na, np.ravel(ss.n_cm3), np.ravel(ss.p_cm3))
         block = det.photoconductor_figures(d, setup.thickness_cm, T, n0, p0, np.ravel(ss.n_cm3),
                                            np.ravel(ss.p_cm3), mu_dark, mu_light, np.ravel(ss.tau_eff_s),
-                                           tau_dark, g_opt, g_bg, irr)
+                                           tau_dark, g_opt, g_bg, irr, ln_n0_cm3=ln_n0, ln_p0_cm3=ln_p0)
     else:
         from .transport import diffusivity_cm2_s
         mu_e, mu_h = _mobilities(setup, T, nd, na, n0, p0)
         D_min = diffusivity_cm2_s(np.where(n0 >= p0, mu_h, mu_e), T)
         rear_S = _rear_S_cm_s(d, rec, setup.material, T, eq)
+        # diffusion J0 from the bulk lifetime: the front is the junction, the rear enters through S
+        tau_bulk = det.bulk_lifetime_s(np.ravel(dark.tau_srh_s), np.ravel(dark.tau_radiative_s),
+                                       np.ravel(dark.tau_auger_s))
         block = det.photodiode_figures(d, setup.thickness_cm, T, np.ravel(eq.ni_eff_cm3), n0, p0,
-                                       np.ravel(ss.n_cm3), np.ravel(ss.p_cm3), D_min, tau_dark, rear_S,
+                                       np.ravel(ss.n_cm3), np.ravel(ss.p_cm3), D_min, tau_bulk, rear_S,
                                        gen.get("photocurrent_mA_cm2", np.zeros(n)), g_opt, g_bg, irr,
                                        bandgap_eV=np.ravel(eq.effective_gap_eV),
                                        permittivity=setup.material.permittivity,
-                                       electron_mass_m0=setup.material.electron_mass_m0(T))
+                                       electron_mass_m0=setup.material.electron_mass_m0(T),
+                                       tau_srh_s=np.ravel(dark.tau_srh_s), ln_n0_cm3=ln_n0, ln_p0_cm3=ln_p0,
+                                       beyond_bias_limit="nan" if _SCANNING.get() else "raise")
     absorbed = gen.get("absorbed_fraction", np.full(n, np.nan))
     block["quantum_efficiency"] = np.where(np.asarray(irr) > 0, absorbed, np.nan)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -647,8 +691,10 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
 
 def _rear_S_cm_s(d, rec, material, T, eq):
     """Rear recombination velocity for the thin-base J0: [detector] rear_S_cm_s, else the
-    [recombination] rear surface (S, or J0 as S_eff = J0 N / (q n_i,eff^2), low injection,
-    Kane & Swanson 1985), else 0 (a perfect rear) [cm/s]."""
+    [recombination] rear surface (S, or J0 as the low-injection S_eff = J0 (n0 + p0) / (q n_i,eff^2),
+    which is J0 N / (q n_i,eff^2) when extrinsic and finite for an intrinsic base; D. E. Kane and
+    R. M. Swanson, Proc. 18th IEEE PVSC (1985) 578, from memory), else 0 (a perfect rear) [cm/s].
+    Evaluated in logarithms: n0 + p0 = exp(logaddexp(ln n0, ln p0))."""
     from .constants import q_C
     if d.rear_S_cm_s is not None:
         return d.rear_S_cm_s
@@ -657,8 +703,8 @@ def _rear_S_cm_s(d, rec, material, T, eq):
     j0 = rec.j0_at_fA_cm2(material, T, "rear")
     if j0 is None:
         return 0.0
-    N = np.abs(np.ravel(eq.n0_cm3) - np.ravel(eq.p0_cm3))
-    return np.exp(np.log(j0 * 1e-15) + np.log(N) - np.log(q_C) - 2.0 * np.ravel(eq.ln_ni_eff_cm3))
+    ln_sum = np.logaddexp(np.ravel(eq.ln_n0_cm3), np.ravel(eq.ln_p0_cm3))
+    return np.exp(np.log(j0 * 1e-15) + ln_sum - np.log(q_C) - 2.0 * np.ravel(eq.ln_ni_eff_cm3))
 
 
 def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.0):
@@ -669,19 +715,27 @@ def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.
     two are equal, i.e. D*/D*_BLIP = 1/sqrt(2).  Both from the full pipeline at
     each trial temperature.  Returns `detector.BackgroundLimit` (temperature_K, found, note).
     """
-    from .detector import background_limit_temperature_K
+    from .detector import background_limit_temperature_K, noise_without_A_Hz05
 
     import warnings
 
     def fn(T):
         T = np.atleast_1d(np.asarray(T, dtype=float))
-        with warnings.catch_warnings():     # the scan's own trial temperatures are not the run's points
-            warnings.simplefilter("ignore", DegenerateWarning)
-            warnings.simplefilter("ignore", PhysicsNoteWarning)
-            b = evaluate(setup, {"absorber.temperature_K": T}, T.size)["detector"]
+        token = _SCANNING.set(True)      # a forward bias beyond a trial temperature's limit: no value there
+        try:
+            with warnings.catch_warnings():     # the scan's own trial temperatures are not the run's points
+                warnings.simplefilter("ignore", DegenerateWarning)
+                warnings.simplefilter("ignore", PhysicsNoteWarning)
+                b = evaluate(setup, {"absorber.temperature_K": T}, T.size)["detector"]
+        finally:
+            _SCANNING.reset(token)
         total, bg = b["noise_total_A_Hz05"], b["noise_background_A_Hz05"]
-        return np.maximum(np.sqrt(np.maximum(total**2 - bg**2, 0.0)), 1e-300), bg
+        return np.maximum(noise_without_A_Hz05(total, bg), 1e-300), bg
     return background_limit_temperature_K(fn, T_low_K, T_high_K)
+
+
+#: True while `background_limit` scans trial temperatures (read by `_detector_block`)
+_SCANNING = contextvars.ContextVar("optogen_background_limit_scan", default=False)
 
 
 def _block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
@@ -844,7 +898,8 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     if "steady_state" in merged and "converged" in merged["steady_state"]:
         bad = int(np.sum(merged["steady_state"]["converged"] == 0))
         if bad:
-            warnings.append(f"{bad} operating point(s) did not converge; see the 'converged' variable")
+            warnings.append(f"{bad} operating point(s) did not converge or are outside the model "
+                            "(the reasons are in the warnings); see the 'converged' variable")
     # reorder from (slow..., fast...) to the scenario's axis order
     order = slow + fast
     perm = [order.index(a) for a in axes]
@@ -856,6 +911,14 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     if not slow:
         _background_limit_attrs(ds, setup)
     return Result(sc, ds, {}, tuple(warnings))
+
+
+#: why an implied FF is null at a converged, lit point (see optogen.steady_state.splitting_falls)
+_FALLING_SPLITTING_NOTE = (
+    "{what}: at the operating point the quasi-Fermi-level splitting falls as the excess density rises (the "
+    "injection-dependent band-gap narrowing outgrows the carriers' kinetic term: the uniform electron-hole plasma "
+    "is unstable, as in the electron-hole liquid of Si below ~25 K), so the implied J-V is not single-valued; "
+    "Voc is the splitting")
 
 
 def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
@@ -872,7 +935,10 @@ def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
     irr = float(blocks.get("light", {}).get("irradiance_W_m2", [0.0])[0])
     if jph > 0 and bool(np.all(details["steady_state"].converged)):
         jv = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph, irradiance_W_m2=irr if irr > 0 else None)
-        if jv.efficiency is not None and not bool(np.all(np.asarray(jv.efficiency) <= 1.0)):
+        if not bool(np.all(np.isfinite(np.asarray(jv.ff)))) and bool(np.all(np.asarray(jv.voc_V) > 0)):
+            out["warnings"] = list(details.get("warnings", ())) + [_FALLING_SPLITTING_NOTE.format(
+                what="the implied FF, maximum-power point and efficiency are null")]
+        elif jv.efficiency is not None and not bool(np.all(np.asarray(jv.efficiency) <= 1.0)):
             # P_max above the incident power: the splitting exceeds the photon energy (population
             # inversion), where linear absorption no longer holds; no number is given
             jv = dataclasses.replace(jv, efficiency=np.nan * np.asarray(jv.efficiency))

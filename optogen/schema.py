@@ -45,6 +45,8 @@ from .errors import InputError, did_you_mean
 T_MIN_K = 4.0                  #: lowest absorber temperature [K]
 T_MAX_K = 1000.0               #: highest absorber temperature [K]
 DOPING_MAX_cm3 = 1e21          #: ceiling of each dopant density and of their sum [cm^-3]
+F_NUMBER_MIN, F_NUMBER_MAX = 0.5, 100.0   #: accepted f-numbers (F_NUMBER_MIN, F_NUMBER_MAX]: faster than
+#: f/0.5 is beyond the aplanatic limit sin(theta) = 1/(2F) = 1, slower than f/100 a pinhole [-]
 THICKNESS_MIN_um = 1e-3        #: thinnest absorber [um]
 THICKNESS_MAX_um = 1e5         #: thickest absorber (10 cm) [um]
 SUNS_MAX = 1e4                 #: brightest light in suns [-]
@@ -358,7 +360,7 @@ _KEYS: list[Key] = [
     _k("background.field_of_view_deg", _NUM, "deg", 90.0, 0.0, 90.0, low_open=True, consumer="light.blackbody",
        doc="field-of-view half-angle (not with f_number)"),
     _k("background.emissivity", _NUM, "-", 1.0, 0.0, 1.0, consumer="light.blackbody", doc="grey emissivity"),
-    _k("background.f_number", _NUM, "-", None, 0.5, 100.0, low_open=True, consumer="runner.build",
+    _k("background.f_number", _NUM, "-", None, F_NUMBER_MIN, F_NUMBER_MAX, low_open=True, consumer="runner.build",
        doc="cold-stop f-number (instead of field_of_view_deg)"),
     _k("background.cuton_nm", _NUM, "nm", None, 0.0, 1e6, low_open=True, consumer="runner.build",
        doc="cold filter cut-on wavelength"),
@@ -595,6 +597,10 @@ def _rule_detector(data):
     for k in ("generation_lifetime_s", "junction_side_doping_cm3", "rear_S_cm_s"):
         if k in det and mode != "photodiode":
             raise InputError(f"detector.{k}", det[k], 'only with mode = "photodiode"')
+    bias = det.get("bias_V", 1.0)
+    if mode == "photoconductor" and isinstance(bias, (int, float)) and not bias > 0:
+        raise InputError("detector.bias_V", bias, "> 0 V for a photoconductor (a bias magnitude)",
+                         "without a bias there is no photocurrent; a photodiode takes 0 or a signed bias")
 
 
 def _rule_surfaces(data):

@@ -137,7 +137,7 @@ def outcome(data: dict) -> str:
         if sc.n_points > MAX_RUN_POINTS:
             return "not run"
         with warnings.catch_warnings():
-            warnings.simplefilter("ignore")          # warnings are the NaN policy's business (issue 15 item 6)
+            _quiet_but_numerics()
             res = optogen.run(sc, progress=False)
             d = res.to_dict()
             json.dumps(d, allow_nan=False)
@@ -146,6 +146,19 @@ def outcome(data: dict) -> str:
         assert exc.field and str(exc)
         return "input error"
     return check_finite(res)
+
+
+def _quiet_but_numerics() -> None:
+    """Inside catch_warnings: stated warnings (UserWarning subclasses: unconverged, degenerate, notes)
+    are the NaN policy's business (issue 15 item 6) and pass silently; a RuntimeWarning (numpy's
+    overflow, divide by zero, invalid value) is an error, so a floating-point fault cannot hide."""
+    warnings.simplefilter("ignore")
+    warnings.simplefilter("error", RuntimeWarning)
+
+
+#: detector outputs that may be +-inf by definition (a channel absent): no SRH centres -> tau_g = inf;
+#: no recombination at all -> bulk lifetime inf; no dark current -> R0A inf.  JSON writes them as null.
+DETECTOR_MAY_BE_INF = {"generation_lifetime_s", "bulk_lifetime_s", "r0a_ohm_cm2"}
 
 
 #: outputs that must be a finite number at every point of any result
@@ -169,6 +182,11 @@ def check_finite(res) -> str:
                 values = np.asarray(ds[name].values, dtype=float)
                 ok = np.isfinite(values) | (flagged if block == "steady_state" else False)
                 assert np.all(ok), f"{block}.{name} not finite: {values}"
+    # detector floats: finite, or null (NaN, a stated reason) - never an unexplained inf
+    for name, da in ds.data_vars.items():
+        if da.attrs.get("block") == "detector" and da.dtype.kind == "f" and name not in DETECTOR_MAY_BE_INF:
+            values = np.asarray(da.values, dtype=float)
+            assert not np.any(np.isinf(values)), f"detector.{name} infinite: {values}"
     return "unconverged (flagged)" if flagged.any() else "finite"
 
 
@@ -193,7 +211,7 @@ def test_set_mutations_exit_0_or_2_never_internal(tmp_path_factory, name, key_in
         (folder / f.name).write_bytes(f.read_bytes())
     err_buf, out_buf = io.StringIO(), io.StringIO()
     with warnings.catch_warnings(), contextlib.redirect_stderr(err_buf), contextlib.redirect_stdout(out_buf):
-        warnings.simplefilter("ignore")
+        _quiet_but_numerics()
         code = main([command, str(path), "--set", f"{key}={text}", *(["--quiet"] if command == "run" else [])])
     err = err_buf.getvalue()
     assert code in (0, 2), err

@@ -107,7 +107,7 @@ PHOTODIODE_KEYS = {"dark_current_A", "photocurrent_A", "responsivity_A_W", "mino
 # suffixes of the unit table in DESIGN.md / optogen.scenario; dimensionless keys listed by name
 DIMENSIONLESS = {"conductivity_contrast", "photoconductive_gain", "minority_ratio", "background_limited",
                  "mode", "background_limit_note", "detectivity_over_blip", "quantum_efficiency",
-                 "tunnelling_may_dominate"}
+                 "tunnelling_may_dominate", "high_field_caution"}
 
 
 def _has_unit_suffix(key):
@@ -272,12 +272,23 @@ def test_narrow_gap_20_to_300_K_finite_and_quiet(material, composition, waveleng
     res = optogen.run(optogen.load_scenario(text), progress=False)
     ds = res.to_dataset()
     assert not res.warnings
-    # no crossing in 20-400 K is reported as null with a note, not hidden (an InGaAs pixel hardly sees a
-    # 300 K scene: its Johnson / dark noise stays above the background noise at every temperature)
+    # no crossing in 20-400 K is reported as null with a note, not hidden: an InGaAs pixel (cut-off
+    # ~1.7 um, common practice) hardly sees a 300 K scene, whose photons lie beyond 3 um (Wien peak
+    # 2898 um K / 300 K = 9.7 um, analytic), so its Johnson / dark noise stays above the background
+    # noise at every temperature; the narrow-gap pixels see the scene and cross inside 20-400 K
     crossing = np.isfinite(ds["background_limit_temperature_K"].values)
-    assert crossing or "no crossing" in str(ds["background_limit_note"].values)
+    note = str(ds["background_limit_note"].values)
+    if material == "InGaAs":
+        assert not crossing and "no crossing" in note and "never background-limited" in note
+    else:
+        assert crossing and "background-limited below" in note
+    # no SRH centres here: no depletion-region generation (Sah-Noyce-Shockley needs them), tau_g = inf (null)
+    if mode == "photodiode":
+        assert np.all(ds["depletion_current_density_mA_cm2"].values == 0.0)
+        assert np.all(np.isinf(ds["generation_lifetime_s"].values))
     for name, da in ds.data_vars.items():
-        if da.dtype.kind == "f" and name not in ("tau_srh_s", "background_limit_temperature_K"):
+        if da.dtype.kind == "f" and name not in ("tau_srh_s", "generation_lifetime_s",
+                                                   "background_limit_temperature_K"):
             assert np.all(np.isfinite(da.values)), name               # DESIGN.md: no NaN or inf
     for name in ("n0_cm3", "p0_cm3", "ni_cm3", "delta_n_cm3", "thermal_generation_cm3_s"):
         assert np.all(ds[name].values > 0), name                      # DESIGN.md: no silent 0
@@ -290,6 +301,7 @@ def test_narrow_gap_20_to_300_K_finite_and_quiet(material, composition, waveleng
 @pytest.mark.parametrize("key,value", [
     ("detector.electrode_spacing_um", 0.0),
     ("detector.bias_V", -1.0),                   # a photoconductor takes a bias magnitude
+    ("detector.bias_V", 0.0),                    # ... above zero: no drift, no photocurrent (finding 4)
     ("detector.width_um", 0.0),
     ("detector.mode", "bolometer"),
 ])
@@ -315,6 +327,7 @@ def test_bad_background_field_of_view_is_rejected(value):
 @pytest.mark.parametrize("old,new", [
     ("electrode_spacing_um = 1000", "electrode_spacing_um = 0"),
     ("bias_V = 5", "bias_V = -5"),
+    ("bias_V = 5", "bias_V = 0"),               # check agrees with run (finding 4)
     ('mode = "photoconductor"', 'mode = "bolometer"'),
 ])
 def test_check_rejects_bad_detector_input(tmp_path, capsys, old, new):
@@ -358,3 +371,103 @@ def test_insb_lifetime_only_defect_with_background_20_to_300_K():
     res = optogen.run(optogen.load_scenario(text), progress=False)
     tau_srh = res.to_dataset()["tau_srh_s"].values
     assert np.all(np.isfinite(tau_srh)) and np.all(tau_srh >= 1e-6 * (1 - 1e-9))   # analytic, as above
+
+
+# --- review of issue 10: the pipeline ---------------------------------------------------------------
+
+INSB_DEMO = (ROOT / "scenarios" / "insb_midwave_photodiode.toml").read_text().split("[sweep]")[0]
+
+
+def test_photodiode_j0_does_not_count_the_front_surface():
+    # the front of a photodiode base is the junction: the diffusion J0 (Shockley 1949; thin-base form,
+    # Green 1982 ch. 4, from memory) holds the bulk lifetime and the rear S only, so the front surface
+    # velocity of [recombination] cannot change it (analytic)
+    slow = run_dict(INSB_DEMO)["detector"]
+    fast = run_dict(INSB_DEMO.replace("front_S_cm_s = 100", "front_S_cm_s = 1e6"))["detector"]
+    assert fast["j0_thin_base_mA_cm2"] == pytest.approx(slow["j0_thin_base_mA_cm2"], rel=1e-12)
+    assert fast["j0_depletion_mA_cm2"] == pytest.approx(slow["j0_depletion_mA_cm2"], rel=1e-12)
+    # ... while the rear one does: S = 1e6 cm/s is far above D/L for this 10 um base
+    rear = run_dict(INSB_DEMO.replace("rear_S_cm_s = 100", "rear_S_cm_s = 1e6"))["detector"]
+    assert rear["j0_thin_base_mA_cm2"] > 1.5 * slow["j0_thin_base_mA_cm2"]
+
+
+def test_default_generation_lifetime_is_the_srh_lifetime():
+    # analytic: one mid-gap level, n-type base n0 = 1e15 >> n1 = p1 = n_i (~2e9 cm^-3 for InSb at 77 K,
+    # common practice): tau_SRH = tau_p0 (n0 + n1) / n0 + tau_n0 p1 / n0 = 1e-7 s to a few 1e-6 relative
+    d = run_dict(INSB_DEMO)["detector"]
+    assert d["generation_lifetime_s"] == pytest.approx(1e-7, rel=1e-4)
+    # bulk lifetime <= each channel; here SRH dominates at 77 K: within 1/(1/tau_SRH) of 1e-7 from below
+    assert d["bulk_lifetime_s"] <= d["generation_lifetime_s"] * (1 + 1e-12)
+
+
+@pytest.mark.filterwarnings("error")
+@pytest.mark.parametrize("T", [4.0, 10.0])
+def test_forward_bias_beyond_the_built_in_potential_is_an_input_error(T):
+    # InSb Eg(0) = 0.235 eV (Vurgaftman 2001, from memory): V_bi <= Eg/q < 0.3 V, so 0.3 V forward
+    # removes the junction barrier; before the fix this printed 1.8e29 A at 10 K and overflowed at 4 K
+    text = INSB_DEMO.replace("bias_V = 0", "bias_V = 0.3").replace("temperature_K = 77", f"temperature_K = {T}", 1)
+    with pytest.raises(InputError, match="V_bi - 3kT/q") as err:
+        optogen.run(optogen.load_scenario(text), progress=False)
+    assert err.value.field == "detector.bias_V" and f"{T:g} K" in str(err.value)
+
+
+def test_forward_bias_limit_names_the_sweep_point():
+    # V_bi falls as T rises (n_i grows): 0.12 V forward is allowed at 60 K and refused at 160 K for this
+    # base (V_bi - 3kT/q = kT ln(N nj / n_i^2) - 3kT; checked by the error text, which quotes it)
+    text = INSB_DEMO.replace("bias_V = 0", "bias_V = 0.12") + '[sweep]\n"absorber.temperature_K" = [60.0, 160.0]\n'
+    with pytest.raises(InputError, match="detector.bias_V") as err:
+        optogen.run(optogen.load_scenario(text), progress=False)
+    assert "160 K" in str(err.value) and "point 2 of 2" in str(err.value)
+
+
+@pytest.mark.filterwarnings("error")
+def test_degenerate_base_minority_ratio_without_warnings():
+    # 9.2e18 cm^-3 donors in InSb at 60 K: p0 = n_i^2 / n0 underflows a double; the minority ratio is
+    # computed from ln p0 (no division by zero) and is finite or null
+    text = INSB_DEMO.replace("donors_cm3 = 1e15", "donors_cm3 = 9.2e18").replace(
+        "temperature_K = 77", "temperature_K = 60", 1)
+    for mode in ("photodiode", "photoconductor"):
+        t = text if mode == "photodiode" else text.replace('mode = "photodiode"', 'mode = "photoconductor"').replace(
+            "bias_V = 0", "bias_V = 0.1").replace("junction_side_doping_cm3 = 1e18\n", "")
+        res = optogen.run(optogen.load_scenario(t), progress=False)
+        r = res.to_dict()["detector"]["minority_ratio"]
+        assert r is None or (np.isfinite(r) and r >= 1.0)
+
+
+def test_rear_j0_of_an_intrinsic_base():
+    # Kane & Swanson 1985 (from memory): low-injection S_eff = J0 (n0 + p0) / (q n_i^2).  Intrinsic,
+    # n0 = p0 = n_i = 1e10: S = 10e-15 A/cm^2 * 2e10 / (1.602e-19 C * 1e20) = 1.248e-5 cm/s (by hand);
+    # extrinsic n0 = 1e16, p0 = 1e4: S = 1e-14 * (1e16 + 1e4) / (1.602e-19 * 1e20) = 6.242 cm/s
+    from types import SimpleNamespace
+    from optogen.runner import _rear_S_cm_s
+    d = SimpleNamespace(rear_S_cm_s=None)
+    rec = SimpleNamespace(rear_S_cm_s=None, j0_at_fA_cm2=lambda material, T, side: 10.0)
+    for n0, p0, expected in ((1e10, 1e10, 1e-14 * 2e10 / (Q * 1e20)), (1e16, 1e4, 1e-14 * (1e16 + 1e4) / (Q * 1e20))):
+        eq = SimpleNamespace(ln_n0_cm3=np.log([n0]), ln_p0_cm3=np.log([p0]), ln_ni_eff_cm3=np.log([1e10]))
+        assert _rear_S_cm_s(d, rec, None, np.array([300.0]), eq)[0] == pytest.approx(expected, rel=1e-12)
+    assert 1e-14 * 2e10 / (Q * 1e20) == pytest.approx(1.248e-5, rel=1e-3)
+
+
+def test_closed_gap_with_a_cold_filter_is_the_closed_gap_error():
+    # InSb's Varshni gap closes near 1000 K (0.235 - 3.2e-4 * 1e6 / 1170 = -0.038 eV, analytic with
+    # Vurgaftman 2001 values, from memory): the run refuses the closed gap, not a negative cut-off wavelength
+    text = INSB_DEMO.replace("temperature_K = 77", "temperature_K = 1000", 1)
+    with pytest.raises(InputError) as err:
+        optogen.run(optogen.load_scenario(text), progress=False)
+    assert "cut-off wavelength -" not in str(err.value)
+    assert err.value.field.startswith("absorber.")
+
+
+def test_high_field_caution_is_printed(tmp_path, capsys):
+    # 1e4 V over 50 um = 2e6 V/cm: drift velocities far above ~1e7 cm/s (common practice) and minority
+    # sweep-out; the gain tau/t_tr is not to be trusted, which the summary says
+    text = BAR.replace("bias_V = 5", "bias_V = 1e4")
+    d = run_dict(text)["detector"]
+    assert d["high_field_caution"] is True
+    path = tmp_path / "hot.toml"
+    path.write_text(text)
+    assert main(["run", str(path), "--quiet"]) == 0
+    assert "Note: High field" in capsys.readouterr().out
+    # 5 V over 1 mm (50 V/cm) with tau = 10 us, mu_h ~ 450: mu_h E tau = 0.23 cm > 0.1 cm: swept out too;
+    # at 0.5 V it is 0.023 cm: no caution (Rittner 1956, from memory)
+    assert run_dict(BAR.replace("bias_V = 5", "bias_V = 0.5"))["detector"]["high_field_caution"] is False

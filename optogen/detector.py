@@ -432,7 +432,8 @@ def built_in_potential_V(T_K, acceptors_cm3, donors_cm3, ni_cm3, bandgap_eV):
     ni_cm3 [cm^-3]; bandgap_eV [eV].
     """
     kT = k_B_eV_K * _arr(T_K)
-    v = kT * (np.log(_arr(acceptors_cm3)) + np.log(_arr(donors_cm3)) - 2.0 * np.log(_arr(ni_cm3)))
+    with np.errstate(divide="ignore"):   # n_i below the float range (cold, wide gap): V_bi -> the Eg cap
+        v = kT * (np.log(_arr(acceptors_cm3)) + np.log(_arr(donors_cm3)) - 2.0 * np.log(_arr(ni_cm3)))
     return np.clip(v, 0.0, _arr(bandgap_eV))
 
 

@@ -397,3 +397,13 @@ def test_detectivity_plot_on_arrhenius_axis_with_blip_line():
     text = INSB + '[sweep]\n"detector.bias_V" = [0.0, -0.1]\n'
     ds = optogen.run(optogen.load_scenario(text), progress=False).dataset
     assert "1000 / T" not in plots.detector_detectivity(ds).axes[0].get_xlabel()
+
+
+def test_built_in_potential_when_n_i_is_below_the_float_range():
+    # analytic: V_bi = (kT/q) ln(N_A N_D / n_i^2) grows without bound as n_i -> 0 and is capped at Eg/q;
+    # an n_i that underflows to 0 (InGaAs at 4 K: n_i ~ exp(-Eg/2kT) ~ 1e-510 cm^-3) must give the cap, no warning
+    import warnings
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", RuntimeWarning)
+        v = det.built_in_potential_V(4.0, 1e18, 1e15, 0.0, 0.81)
+    assert float(v) == 0.81

@@ -157,8 +157,9 @@ def _quiet_but_numerics() -> None:
 
 
 #: detector outputs that may be +-inf by definition (a channel absent): no SRH centres -> tau_g = inf;
-#: no recombination at all -> bulk lifetime inf; no dark current -> R0A inf.  JSON writes them as null.
-DETECTOR_MAY_BE_INF = {"generation_lifetime_s", "bulk_lifetime_s", "r0a_ohm_cm2"}
+#: no recombination at all -> bulk lifetime inf; no dark current -> R0A inf; no response to the signal
+#: (a signal beyond the cut-off: D* = 0) -> NEP = sqrt(A df) / D* inf.  JSON writes them as null.
+DETECTOR_MAY_BE_INF = {"generation_lifetime_s", "bulk_lifetime_s", "r0a_ohm_cm2", "noise_equivalent_power_W"}
 
 
 #: outputs that must be a finite number at every point of any result

@@ -9,12 +9,12 @@ record keeps micrometres, named so), currents [A], current densities
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, fields
+from dataclasses import dataclass
 
 import numpy as np
 from scipy.optimize import brentq
 
-from .constants import c_m_s, eps0_F_cm, h_J_s, hc_eV_nm, k_B_eV_K, k_B_J_K, m0_kg, q_C
+from .constants import eps0_F_cm, h_J_s, hc_eV_nm, k_B_eV_K, k_B_J_K, m0_kg, q_C
 from .transport import conductivity_S_cm
 from . import schema as _schema
 from .errors import InputError, check_range, did_you_mean

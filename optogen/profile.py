@@ -56,11 +56,9 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.linalg import lapack
 
-from .constants import q_C
 from .errors import InputError, check_range
 
 _EPS = np.finfo(float).eps
-_FEMTO = 1e-15  # fA -> A (SI prefix)
 
 
 class MeshRefinedWarning(UserWarning):
@@ -252,23 +250,26 @@ def surface_J0(J0_fA_cm2, n0_cm3, p0_cm3, ni_eff_cm3, field="profile.J0_fA_cm2")
 
         Us = (J0 / q) (n p - ni_eff^2) / ni_eff^2,   n = n0 + dn, p = p0 + dn
 
-    (D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, 1985, p. 578).  Evaluated as
-    (J0/q)[(n0/ni)(p0/ni) - 1 + (dn/ni)((n0 + p0 + dn)/ni)] so ni^2 never under/overflows.
+    (D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, 1985, p. 578, from memory).  The law
+    itself is `optogen.recombination.surface_j0_flux_cm2_s` (one definition for the uniform
+    and the depth-resolved runs); here ni_eff^2 enters as its shift ln(ni_eff^2 / (n0 p0)),
+    taken in logarithms.  J0 is the value at the temperature of the run (no reference scaling
+    here: `optogen.recombination.j0_at_temperature_fA_cm2` does that).
 
-    J0_fA_cm2 : surface saturation current density [fA/cm^2], >= 0
-    n0_cm3, p0_cm3 : equilibrium electron and hole densities [cm^-3], >= 0
+    J0_fA_cm2 : surface saturation current density at the run temperature [fA/cm^2], >= 0
+    n0_cm3, p0_cm3 : equilibrium electron and hole densities [cm^-3], > 0
     ni_eff_cm3 : effective intrinsic density [cm^-3], > 0
     Returns a callable dn [cm^-3] -> (Us [cm^-2 s^-1], dUs/ddn [cm/s]).
     """
-    J0 = check_range(field, J0_fA_cm2, 0.0, None, unit="fA/cm^2") * _FEMTO / q_C  # [cm^-2 s^-1]
-    n0 = check_range("profile.n0_cm3", n0_cm3, 0.0, None, unit="cm^-3")
-    p0 = check_range("profile.p0_cm3", p0_cm3, 0.0, None, unit="cm^-3")
+    from .recombination import surface_j0_flux_cm2_s
+    J0 = check_range(field, J0_fA_cm2, 0.0, None, unit="fA/cm^2")
+    n0 = check_range("profile.n0_cm3", n0_cm3, 0.0, None, low_open=True, unit="cm^-3")
+    p0 = check_range("profile.p0_cm3", p0_cm3, 0.0, None, low_open=True, unit="cm^-3")
     ni = check_range("profile.ni_eff_cm3", ni_eff_cm3, 0.0, None, low_open=True, unit="cm^-3")
-    dark = (n0 / ni) * (p0 / ni) - 1.0
+    shift = 2.0 * np.log(ni) - np.log(n0) - np.log(p0)
 
     def rate(dn):
-        return (J0 * (dark + (dn / ni) * ((n0 + p0 + dn) / ni)),
-                J0 * ((n0 + p0 + 2.0 * dn) / ni) / ni)
+        return surface_j0_flux_cm2_s(n0, p0, dn, J0, shift, J0_reference_K=None, derivative=True)
     return rate
 
 

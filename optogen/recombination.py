@@ -409,19 +409,107 @@ _INTRINSIC_ALIASES = {
 _SILICON_ONLY = {"richter2012", "kerr_cuevas2002", "dziewior_schmid1977"}
 
 
-def surface_j0(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, thickness_cm, ni2_shift=0.0):
+def j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K=298.15):
+    """A surface J0 quoted at J0_reference_K, carried to temperature T_K [fA/cm^2].
+
+    J0(T) = J0(T_ref) n_i^2(T) / n_i^2(T_ref),  n_i^2 = Nc Nv exp(-Eg / kT) of the material
+    without narrowing.  A surface (or emitter) J0 is proportional to n_i^2: the dark
+    recombination flux J0/q (n p / n_i^2 - 1) is then fixed by the surface alone (D. E. Kane
+    and R. M. Swanson, Proc. 18th IEEE PVSC (1985) 578, from memory; common practice).
+    This is the only place the J0 temperature scaling is applied: `surface_j0_flux_cm2_s`,
+    `Recombination.j0_at_fA_cm2` and so the uniform rates, the depth-resolved surface and
+    the detector's rear S_eff all go through it.
+
+    Parameters
+    ----------
+    J0_fA_cm2 : J0 at J0_reference_K [fA/cm^2]
+    material : the absorber (Nc, Nv, Eg of T)
+    T_K : temperature [K]
+    J0_reference_K : temperature at which J0_fA_cm2 is quoted [K]; None: J0 as given at every T
+
+    Returns
+    -------
+    J0 at T_K [fA/cm^2], broadcast over J0_fA_cm2 and T_K.
+    """
+    j0 = np.asarray(J0_fA_cm2, dtype=float)
+    if J0_reference_K is None:
+        return j0
+    if J0_reference_K is not None and (material is None or T_K is None):
+        raise InputError("recombination.J0_reference_K", J0_reference_K,
+                         "material and T_K, to carry J0 from its reference temperature to T",
+                         "pass material= and T_K=, or J0_reference_K=None for a J0 already at T")
+    return j0 * _j0_scale(material, T_K, J0_reference_K)
+
+
+def surface_j0_flux_cm2_s(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, ni2_shift=0.0, *, material=None, T_K=None,
+                          J0_reference_K=298.15, derivative=False):
+    """Recombination flux into a surface described by a J0 [cm^-2 s^-1] (the one J0 surface law).
+
+    Us = (J0(T) / q) (n p - n_i,eff^2) / n_i,eff^2,   n = n0 + dn, p = p0 + dn,
+    n_i,eff^2 = n0 p0 exp(ni2_shift),  J0(T) from `j0_at_temperature_fA_cm2`.
+
+    n p - n_i,eff^2 comes from `excess_product_cm6` (no cancellation).  The depth-resolved
+    surface (runner, optogen.profile.surface_J0) and the detector's low-injection
+    S_eff = dUs/ddn at dn = 0 = J0 (n0 + p0) / (q n0 p0) call this function; `surface_j0`
+    (called by `PreparedRates.rates`) is the same law divided by W, through the same kernel
+    and the same J0 temperature scaling.
+
+    Parameters
+    ----------
+    n0_cm3, p0_cm3 : dark electron and hole densities [cm^-3]
+    delta_n_cm3 : excess density at the surface [cm^-3]
+    J0_fA_cm2 : saturation current density of the surface, quoted at J0_reference_K [fA/cm^2]
+    ni2_shift : ln(n_i,eff^2(n, p) / (n0 p0)) from injection-dependent narrowing, 0 otherwise [-]
+    material, T_K : the absorber and the temperature [K]; needed unless J0_reference_K is None
+    J0_reference_K : temperature at which J0 is quoted [K] (default 298.15, as
+        `Recombination.J0_reference_K`); None: J0_fA_cm2 is already the value at T
+    derivative : also return dUs/ddn [cm/s] (at fixed ni2_shift)
+
+    Returns
+    -------
+    Us [cm^-2 s^-1] (0 where J0 = 0), or (Us, dUs/ddn [cm/s]) with derivative=True.
+
+    References
+    ----------
+    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (from memory).
+    """
+    j0 = j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K)
+    return _j0_law(j0 * 1e-15 / q_C, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift, derivative)
+
+
+def _j0_law(coef, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift, derivative=False):
+    """coef (n p - n_i,eff^2) / n_i,eff^2 (and its dn-derivative at fixed shift); coef = J0(T)/q
+    [cm^-2 s^-1] for the flux, J0(T)/(q W) [cm^-3 s^-1] for the volume rate.  coef is applied
+    before the division by n0 p0 so a subnormal rate is rounded once."""
+    n0, p0 = np.asarray(n0_cm3, dtype=float), np.asarray(p0_cm3, dtype=float)
+    dn = np.asarray(delta_n_cm3, dtype=float)
+    coef = np.asarray(coef, dtype=float)
+    exc = excess_product_cm6(n0, p0, dn, ni2_shift)
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        ni2 = n0 * p0 * np.exp(ni2_shift)
+        us = np.where(coef > 0, coef * exc / ni2, 0.0)
+        if not derivative:
+            return us
+        dus = np.where(coef > 0, coef * ((n0 + p0 + 2.0 * dn) / n0) / p0 * np.exp(-np.asarray(ni2_shift)), 0.0)
+    return us, dus
+
+
+def surface_j0(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, thickness_cm, ni2_shift=0.0, *, material=None, T_K=None,
+               J0_reference_K=298.15):
     """Surface recombination through a J0 per surface, as a volume rate in a uniform wafer [cm^-3 s^-1].
 
-    U_s = J0 (n p - n_i,eff^2) / (q n_i,eff^2 W)
+    U_s = Us / W with Us from `surface_j0_flux_cm2_s` (same arguments and kernel; J0 carried
+    from J0_reference_K to T_K as n_i^2 by `j0_at_temperature_fA_cm2`).  thickness_cm: W [cm].
+    `PreparedRates.rates` (so `Recombination.rates`) calls this for its J0 surfaces, so the two
+    agree at every temperature.
 
-    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985).
-    J0_fA_cm2: saturation current density of the surface [fA/cm^2]; thickness_cm: W [cm].
-    n0_cm3, p0_cm3, delta_n_cm3 [cm^-3]; ni2_shift [-].
+    References
+    ----------
+    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (from memory).
     """
-    n0, p0 = np.asarray(n0_cm3, float), np.asarray(p0_cm3, float)
-    ni2 = n0 * p0 * np.exp(ni2_shift)
-    return (np.asarray(J0_fA_cm2) * 1e-15 / (q_C * np.asarray(thickness_cm))
-            * excess_product_cm6(n0, p0, delta_n_cm3, ni2_shift) / ni2)
+    j0 = j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K)
+    return _j0_law(j0 * 1e-15 / (q_C * np.asarray(thickness_cm, dtype=float)), n0_cm3, p0_cm3, delta_n_cm3,
+                   ni2_shift)
 
 
 def surface_velocity(delta_n_cm3, S_cm_s, thickness_cm):
@@ -552,12 +640,12 @@ class Recombination:
     def j0_at_fA_cm2(self, material, T_K, side: str):
         """J0 of the "front" or "rear" surface at temperature T_K [fA/cm^2] (None if given as S).
 
-        Scaled by n_i^2(T) / n_i^2(J0_reference_K) as in the rates.
+        Scaled by n_i^2(T) / n_i^2(J0_reference_K) (`j0_at_temperature_fA_cm2`), as in the rates.
         """
         j0 = getattr(self, f"{side}_J0_fA_cm2")
         if j0 is None or self.J0_reference_K is None:
             return j0
-        return j0 * _j0_scale(material, T_K, self.J0_reference_K)
+        return j0_at_temperature_fA_cm2(j0, material, T_K, self.J0_reference_K)
 
     def rates(self, material, eq, delta_n_cm3, thickness_cm) -> dict:
         """Rates of every mechanism at excess density delta_n_cm3 [cm^-3 s^-1].
@@ -605,7 +693,7 @@ class PreparedRates:
     """
 
     _ARRAYS = ("T", "kT", "ef", "nd", "na", "n0", "p0", "log_n0", "log_p0", "nc", "nv", "eg", "bgn0",
-               "srh_a", "srh_b", "n1", "p1", "aug_A", "aug_C", "rad_B", "s_j0", "s_s")
+               "srh_a", "srh_b", "n1", "p1", "aug_A", "aug_C", "rad_B", "s_j0", "s_W", "s_s")
 
     def __init__(self, rec: Recombination, material, eq, thickness_cm, shape=None, index=None):
         if rec is None:
@@ -660,9 +748,11 @@ class PreparedRates:
         # surfaces
         j0 = sum(_gather(v, shape, index) for v in (rec.front_J0_fA_cm2, rec.rear_J0_fA_cm2) if v is not None)
         s = sum(_gather(v, shape, index) for v in (rec.front_S_cm_s, rec.rear_S_cm_s) if v is not None)
-        self.s_j0 = np.zeros(P) + j0 * 1e-15 / (q_C * W)
+        # s_j0: the summed J0 of both surfaces carried to T [fA/cm^2]; s_W: W [cm]
+        self.s_j0 = np.zeros(P) + j0
         if rec.J0_reference_K is not None and np.any(self.s_j0):
-            self.s_j0 = self.s_j0 * _j0_scale(material, self.T, rec.J0_reference_K)
+            self.s_j0 = j0_at_temperature_fA_cm2(self.s_j0, material, self.T, rec.J0_reference_K)
+        self.s_W = W + np.zeros(P)
         self.s_s = np.zeros(P) + s / W
         if np.any((self.s_j0 > 0) & (n0 * p0 <= 0)):
             raise InputError("recombination.front_J0_fA_cm2" if rec.front_J0_fA_cm2 is not None
@@ -756,8 +846,7 @@ class PreparedRates:
         srh = _srh_rates(n0, p0, dn, self.srh_a, self.srh_b, self.n1, self.p1, shift) if self.n1.shape[-1] else 0.0 * dn
         rad = self.rad_B * exc
         aug = exc * (self.aug_A + self.aug_C * dn**self.aug_e)
-        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            sj = np.where(self.s_j0 > 0, self.s_j0 * exc / (n0 * p0 * np.exp(shift)), 0.0)
+        sj = surface_j0(n0, p0, dn, self.s_j0, self.s_W, shift, J0_reference_K=None)   # s_j0 is already at T
         surf = sj + self.s_s * dn
         return srh, rad, aug, surf
 

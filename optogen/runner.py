@@ -508,7 +508,7 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
     from .transport import ambipolar_diffusivity_cm2_s, diffusivity_cm2_s
     sc, mat, rec, W = setup.scenario, setup.material, setup.recombination, setup.thickness_cm
     plane = str(sc.get("solver.voc_plane", "front")).lower()
-    n0, p0, ni_eff = (np.ravel(getattr(eq, k)) for k in ("n0_cm3", "p0_cm3", "ni_eff_cm3"))
+    n0, p0 = (np.ravel(getattr(eq, k)) for k in ("n0_cm3", "p0_cm3"))
     col = _column(eq)
 
     def d_amb(dn):
@@ -522,10 +522,17 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
         return r["srh"] + r["radiative"] + r["auger"]
 
     def surface(side):
-        j0 = rec.j0_at_fA_cm2(mat, T, side)
+        # the same J0 law and temperature scaling as the uniform rates (recombination.surface_j0_flux_cm2_s),
+        # with the injection-dependent narrowing shift at the face density
+        j0 = getattr(rec, f"{side}_J0_fA_cm2")
         if j0 is not None:
-            return pr.surface_J0(np.asarray(j0)[:, None] * np.ones((T.size, 1)), n0[:, None], p0[:, None],
-                                 ni_eff[:, None], field=f"recombination.{side}_J0_fA_cm2")
+            from .recombination import surface_j0_flux_cm2_s
+            check_range(f"recombination.{side}_J0_fA_cm2", j0, 0.0, None, unit="fA/cm^2")
+            prep = rec.prepare(mat, col, W, shape=(T.size, 1))
+            c0, v0 = n0[:, None], p0[:, None]
+            return lambda dn: surface_j0_flux_cm2_s(
+                c0, v0, dn, j0, np.reshape(prep.ni2_shift(np.ravel(dn)), np.shape(dn)), material=mat,
+                T_K=T[:, None], J0_reference_K=rec.J0_reference_K, derivative=True)
         S = getattr(rec, f"{side}_S_cm_s")
         return pr.surface_S(0.0 if S is None else S, field=f"recombination.{side}_S_cm_s")
 
@@ -622,11 +629,12 @@ def _missing_mobility(material) -> str | None:
 
 
 def _photoconductance(setup, eq, ss, T, nd, na):
-    """Photoconductance Delta sigma W [S] (sheet), with injection-dependent mobilities.
+    """Photoconductance [S] (sheet): `transport.photoconductance_S` with each state's own
+    injection-dependent mobilities.
 
     Null (NaN), with a warning, for a material without mobilities; NaN at unconverged points.
     """
-    from .transport import conductivity_S_cm
+    from .transport import photoconductance_S
     n0, p0 = np.ravel(eq.n0_cm3), np.ravel(eq.p0_cm3)
     n, p = np.ravel(ss.n_cm3), np.ravel(ss.p_cm3)
     missing = _missing_mobility(setup.material)
@@ -636,9 +644,8 @@ def _photoconductance(setup, eq, ss, T, nd, na):
                 f"photoconductance_S is null: {setup.material.name} has no carrier mobilities "
                 f"(absorber.custom.{missing} not given)"), stacklevel=3)
         return np.full(n.shape, np.nan)
-    sigma0 = conductivity_S_cm(n0, p0, *_mobilities(setup, T, nd, na, n0, p0))
-    sigma = conductivity_S_cm(n, p, *_mobilities(setup, T, nd, na, n, p))
-    return (sigma - sigma0) * setup.thickness_cm
+    return photoconductance_S(n0, p0, n, p, *_mobilities(setup, T, nd, na, n0, p0),
+                              *_mobilities(setup, T, nd, na, n, p), setup.thickness_cm)
 
 
 def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
@@ -691,20 +698,21 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
 
 def _rear_S_cm_s(d, rec, material, T, eq):
     """Rear recombination velocity for the thin-base J0: [detector] rear_S_cm_s, else the
-    [recombination] rear surface (S, or J0 as the low-injection S_eff = J0 (n0 + p0) / (q n_i,eff^2),
-    which is J0 N / (q n_i,eff^2) when extrinsic and finite for an intrinsic base; D. E. Kane and
-    R. M. Swanson, Proc. 18th IEEE PVSC (1985) 578, from memory), else 0 (a perfect rear) [cm/s].
-    Evaluated in logarithms: n0 + p0 = exp(logaddexp(ln n0, ln p0))."""
-    from .constants import q_C
+    [recombination] rear surface (S, or J0 as the low-injection S_eff = dUs/ddn at dn = 0 of
+    `recombination.surface_j0_flux_cm2_s` = J0(T) (n0 + p0) / (q n0 p0), which is J0 N / (q n_i^2)
+    when extrinsic and finite for an intrinsic base; D. E. Kane and R. M. Swanson, Proc. 18th
+    IEEE PVSC (1985) 578, from memory), else 0 (a perfect rear) [cm/s]."""
+    from .recombination import surface_j0_flux_cm2_s
     if d.rear_S_cm_s is not None:
         return d.rear_S_cm_s
     if rec.rear_S_cm_s is not None:
         return rec.rear_S_cm_s
-    j0 = rec.j0_at_fA_cm2(material, T, "rear")
+    j0 = rec.j0_at_fA_cm2(material, T, "rear")        # already carried to T (j0_at_temperature_fA_cm2)
     if j0 is None:
         return 0.0
-    ln_sum = np.logaddexp(np.ravel(eq.ln_n0_cm3), np.ravel(eq.ln_p0_cm3))
-    return np.exp(np.log(j0 * 1e-15) + ln_sum - np.log(q_C) - 2.0 * np.ravel(eq.ln_ni_eff_cm3))
+    # S_eff = dUs/ddn at dn = 0 of the one J0 law (dark reference n0 p0, as in the rates)
+    return surface_j0_flux_cm2_s(np.exp(np.ravel(eq.ln_n0_cm3)), np.exp(np.ravel(eq.ln_p0_cm3)), 0.0, j0,
+                                 J0_reference_K=None, derivative=True)[1]
 
 
 def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.0):

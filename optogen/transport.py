@@ -444,14 +444,37 @@ def diffusion_length_cm(D_cm2_s, tau_s):
     return np.sqrt(_arr(D_cm2_s) * _arr(tau_s))
 
 
-def photoconductance_S(delta_n_cm3, delta_p_cm3, mu_e_cm2_Vs, mu_h_cm2_Vs, thickness_cm):
-    """Sheet photoconductance Delta_sigma W = q (Delta_n mu_e + Delta_p mu_h) W [S].
+def photoconductance_S(n0_cm3, p0_cm3, n_cm3, p_cm3, mu_e_dark_cm2_Vs, mu_h_dark_cm2_Vs,
+                       mu_e_light_cm2_Vs, mu_h_light_cm2_Vs, thickness_cm):
+    """Sheet photoconductance: the conductance change between dark and light [S].
 
-    The mobilities should be those of the illuminated state (e.g. Klaassen 1992
-    with n, p under light); definition of the conductivity change, Sze & Ng (2007)
-    section 13.2 (common practice).
+    Delta_sigma W = [sigma(n, p) - sigma(n0, p0)] W
+                  = q [(n mu_e(n, p) + p mu_h(n, p)) - (n0 mu_e(n0, p0) + p0 mu_h(n0, p0))] W
 
-    delta_n_cm3, delta_p_cm3 [cm^-3]; mu_e_cm2_Vs, mu_h_cm2_Vs [cm^2 V^-1 s^-1];
-    thickness_cm [cm].
+    each state with its own mobilities (injection-dependent, e.g. Klaassen 1992).  This is
+    the quantity a photoconductance lifetime tester measures: the change of the wafer's sheet
+    conductance under light, from which the excess density is inferred (R. A. Sinton and
+    A. Cuevas, Appl. Phys. Lett. 69, 2510 (1996), doi:10.1063/1.117723, from memory).  With
+    the same mobilities in both states it is q (Delta_n mu_e + Delta_p mu_h) W
+    (S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007),
+    sect. 13.2); with injection-dependent mobilities that form differs by about 1-3 %.
+
+    Parameters
+    ----------
+    n0_cm3, p0_cm3 : dark electron and hole densities [cm^-3]
+    n_cm3, p_cm3 : electron and hole densities under light [cm^-3]
+    mu_e_dark_cm2_Vs, mu_h_dark_cm2_Vs : mobilities at (n0, p0) [cm^2 V^-1 s^-1]
+    mu_e_light_cm2_Vs, mu_h_light_cm2_Vs : mobilities at (n, p) [cm^2 V^-1 s^-1]
+    thickness_cm : wafer thickness W [cm]
+
+    Returns
+    -------
+    Sheet photoconductance [S] (siemens per square), broadcast over the inputs.
+
+    References
+    ----------
+    R. A. Sinton and A. Cuevas, Appl. Phys. Lett. 69, 2510 (1996), doi:10.1063/1.117723.
     """
-    return conductivity_S_cm(delta_n_cm3, delta_p_cm3, mu_e_cm2_Vs, mu_h_cm2_Vs) * _arr(thickness_cm)
+    light = conductivity_S_cm(n_cm3, p_cm3, mu_e_light_cm2_Vs, mu_h_light_cm2_Vs)
+    dark = conductivity_S_cm(n0_cm3, p0_cm3, mu_e_dark_cm2_Vs, mu_h_dark_cm2_Vs)
+    return (light - dark) * _arr(thickness_cm)

@@ -179,6 +179,22 @@ def test_j0_surface_low_injection_equals_velocity():
     np.testing.assert_allclose(a.delta_n_cm3, b.delta_n_cm3, rtol=1e-3)   # dn/p0 < 1e-3
 
 
+def test_j0_surface_is_the_recombination_law_with_its_derivative():
+    # Kane & Swanson 1985 (from memory): Us = (J0/q) (n p - ni^2)/ni^2; by hand with ni^2 = n0 p0:
+    # Us = (J0/q) dn (n0 + p0 + dn) / (n0 p0), dUs/ddn = (J0/q) (n0 + p0 + 2 dn) / (n0 p0).  The same law as
+    # optogen.recombination.surface_j0_flux_cm2_s (one definition, issue 14) for a J0 already at T.
+    from optogen.recombination import surface_j0_flux_cm2_s
+    dn = np.array([[0.0, 1e10, 1e14, 3e16]])
+    us, dus = P.surface_J0(20.0, N0, P0, NI)(dn)
+    j = 20e-15 / q_C
+    np.testing.assert_allclose(us, j * dn * (N0 + P0 + dn) / NI**2, rtol=1e-12, atol=0.0)
+    np.testing.assert_allclose(dus, j * (N0 + P0 + 2 * dn) / NI**2, rtol=1e-12)
+    law = surface_j0_flux_cm2_s(N0, P0, dn, 20.0, J0_reference_K=None, derivative=True)
+    np.testing.assert_allclose(us, law[0], rtol=1e-12, atol=0.0)
+    np.testing.assert_allclose(dus, law[1], rtol=1e-12)
+    assert us[0, 0] == 0.0                        # no dark recombination at dn = 0
+
+
 def test_batch_equals_single_profiles():
     x = P.mesh(0.018, 120, [1e-5, 0.05])
     phi = np.logspace(12, 21, 6).reshape(2, 3, 1)

@@ -168,7 +168,37 @@ def test_surface_j0_and_s_forms():
     r = Recombination(bgn_model="none", front_J0_fA_cm2=10.0, rear_S_cm_s=20.0).rates(SI, eq, dn, W)
     expect = 10e-15 * ((n0 + dn) * (p0 + dn) - n0 * p0) / (q_C * n0 * p0 * W) + 20.0 * dn / W
     assert r["surface"] == pytest.approx(expect, rel=1e-9)
-    assert surface_j0(n0, p0, dn, 10.0, W) == pytest.approx(expect - 20.0 * dn / W, rel=1e-9)
+    assert surface_j0(n0, p0, dn, 10.0, W, material=SI, T_K=298.15) == pytest.approx(expect - 20.0 * dn / W,
+                                                                                 rel=1e-9)
+    # a J0 already at T (no reference temperature) needs no material
+    assert surface_j0(n0, p0, dn, 10.0, W, J0_reference_K=None) == pytest.approx(expect - 20.0 * dn / W, rel=1e-9)
+    with pytest.raises(InputError, match="J0_reference_K"):
+        surface_j0(n0, p0, dn, 10.0, W)         # J0 quoted at 298.15 K but no temperature to carry it to
+
+
+@pytest.mark.parametrize("T", [250.0, 300.0, 350.0])
+@pytest.mark.parametrize("bgn", ["none", "schenk1998"])
+def test_public_surface_j0_equals_the_pipeline_rate_at_any_temperature(T, bgn):
+    # Kane & Swanson 1985 (from memory): U_s = J0(T) (n p - n_i,eff^2) / (q n_i,eff^2 W), with J0 quoted at
+    # 298.15 K and carried as n_i^2(T) = Nc Nv exp(-Eg/kT) (common practice).  Away from 298.15 K the public
+    # function once missed that scaling (0.74x at 300 K); all three must agree at every T.
+    eq = equilibrium(SI, T, 1e15, 0.0, bgn_model=bgn)
+    n0, p0 = float(eq.n0_cm3), float(eq.p0_cm3)
+    dn = 1e14
+    rec = Recombination(bgn_model=bgn, front_J0_fA_cm2=4.0, rear_J0_fA_cm2=6.0)
+    pipeline = float(rec.rates(SI, eq, dn, W)["surface"])
+    prep = rec.prepare(SI, eq, W, shape=(1,))
+    shift = float(np.ravel(prep.ni2_shift(np.array([dn])))[0])
+    hot = float(prep.rates(np.array([dn]))[3][0])
+    public = float(surface_j0(n0, p0, dn, 4.0, W, shift, material=SI, T_K=T)
+                   + surface_j0(n0, p0, dn, 6.0, W, shift, material=SI, T_K=T))
+    assert public == pytest.approx(pipeline, rel=1e-12)
+    assert hot == pytest.approx(pipeline, rel=1e-12)
+    if bgn == "none":                       # by the formula: n_i,eff^2 = n0 p0 without narrowing
+        ni2 = lambda t: SI.nc_cm3(t) * SI.nv_cm3(t) * np.exp(-SI.bandgap_eV(t) / kT_eV(t))
+        j0 = 10.0 * ni2(T) / ni2(298.15)
+        expect = j0 * 1e-15 * dn * (n0 + p0 + dn) / (q_C * n0 * p0 * W)
+        assert pipeline == pytest.approx(expect, rel=1e-9)
 
 
 def test_excess_product_no_cancellation():

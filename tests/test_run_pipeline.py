@@ -329,3 +329,46 @@ def test_real_limit_refuses_before_running(tmp_path, capsys):
     path.write_text(WAFER + f'\n[sweep]\n"light.suns" = {{ log = [1e-3, 1], points = {n} }}\n')
     assert main(["run", str(path)]) == 2
     assert "--yes" in capsys.readouterr().err
+
+
+# --- one J0 surface law and one photoconductance for every path (issue 14) ---
+
+@pytest.mark.parametrize("T", [250.0, 300.0, 350.0])
+def test_depth_resolved_rear_j0_flux_is_the_public_surface_law(T):
+    # Kane & Swanson 1985 (from memory): Us = J0(T) (n p - n0 p0) / (q n0 p0), J0 quoted at 298.15 K and
+    # carried as n_i^2(T) = Nc Nv exp(-Eg/kT) (common practice).  Front S = 0, so the whole surface loss
+    # avg W / tau_surface is the rear flux at the rear density; it must equal the public function there.
+    from optogen import materials
+    from optogen.constants import kT_eV
+    from optogen.recombination import surface_j0_flux_cm2_s
+    text = (WAFER.replace("temperature_K = 298.15", f"temperature_K = {T}")
+            .replace("front_S_cm_s = 10\nrear_S_cm_s = 10", "front_S_cm_s = 0\nrear_J0_fA_cm2 = 20")
+            + "[solver]\ndepth_resolved = true\n")
+    d = run_dict(text)
+    n0, p0 = d["equilibrium"]["n0_cm3"], d["equilibrium"]["p0_cm3"]
+    W = 160e-4
+    loss = d["profile"]["average_delta_n_cm3"] * W / d["steady_state"]["tau_s"]["surface"]
+    dn = d["profile"]["rear_delta_n_cm3"]
+    si = materials.get("Si")
+    assert loss == pytest.approx(float(surface_j0_flux_cm2_s(n0, p0, dn, 20.0, material=si, T_K=T)), rel=1e-9)
+    ni2 = lambda t: si.nc_cm3(t) * si.nv_cm3(t) * np.exp(-si.bandgap_eV(t) / kT_eV(t))
+    by_hand = 20e-15 * ni2(T) / ni2(298.15) / sc.e * dn * (n0 + p0 + dn) / (n0 * p0)
+    assert loss == pytest.approx(by_hand, rel=1e-9)
+
+
+def test_pipeline_photoconductance_is_the_public_function():
+    # Sinton & Cuevas 1996 (from memory): the measured photoconductance is sigma(n, p) - sigma(n0, p0),
+    # each state with its own (here Klaassen 1992) mobilities; the run reports transport.photoconductance_S
+    from optogen import materials, transport
+    d = run_dict(WAFER)
+    si = materials.get("Si")
+    n0, p0 = d["equilibrium"]["n0_cm3"], d["equilibrium"]["p0_cm3"]
+    n, p = d["steady_state"]["n_cm3"], d["steady_state"]["p_cm3"]
+    mu_dark = transport.mobility_cm2_Vs(si, 298.15, 1e16, 0.0, n0, p0)
+    mu_light = transport.mobility_cm2_Vs(si, 298.15, 1e16, 0.0, n, p)
+    expect = transport.photoconductance_S(n0, p0, n, p, *mu_dark, *mu_light, 160e-4)
+    assert d["steady_state"]["photoconductance_S"] == pytest.approx(float(expect), rel=1e-9)
+    # and it is not the fixed-mobility form q (dn mu_e + dp mu_h) W with the light mobilities (about 10 %
+    # higher here: it leaves out the majority electrons' mobility drop under light)
+    fixed = sc.e * (n - n0) * (mu_light[0] + mu_light[1]) * 160e-4
+    assert abs(float(fixed) / d["steady_state"]["photoconductance_S"] - 1.0) > 0.05

@@ -164,8 +164,24 @@ def test_ambipolar_limits():
 def test_diffusion_length_and_photoconductance_by_hand():
     # analytic: sqrt(12 cm^2/s * 1e-3 s) = 0.10954 cm
     assert tr.diffusion_length_cm(12.0, 1e-3) == pytest.approx(np.sqrt(12e-3), rel=1e-12)
-    # analytic: q * 1e15 * (1100 + 400) * 0.02 cm = 1.5e16 * 1.602e-19 * 2 = 4.806e-3 S
-    assert tr.photoconductance_S(1e15, 1e15, 1100.0, 400.0, 0.02) == pytest.approx(sc.e * 1e15 * 1500.0 * 0.02, rel=1e-12)
+    # same mobilities dark and light: Delta_sigma W = q (dn mu_e + dp mu_h) W (Sze & Ng 2007 sect. 13.2);
+    # by hand q * 1e15 * (1100 + 400) * 0.02 cm = 1.5e16 * 1.602e-19 * 2 = 4.806e-3 S
+    n0, p0 = 1e16, 1e4
+    assert tr.photoconductance_S(n0, p0, n0 + 1e15, p0 + 1e15, 1100.0, 400.0, 1100.0, 400.0, 0.02) == pytest.approx(
+        sc.e * 1e15 * 1500.0 * 0.02, rel=1e-9)
+    assert sc.e * 1e15 * 1500.0 * 0.02 == pytest.approx(4.806e-3, rel=1e-3)
+
+
+def test_photoconductance_is_the_dark_to_light_conductance_change():
+    # Sinton & Cuevas 1996 (from memory): the tester measures sigma(n, p) - sigma(n0, p0), each state with its
+    # own mobilities.  By hand, W = 0.02 cm, q = 1.602176634e-19 C (scipy.constants):
+    # light n = 1.1e16, p = 1e15 at mu = (1000, 380); dark n0 = 1e16, p0 = 1e4 at mu = (1050, 400):
+    # q W [(1.1e16*1000 + 1e15*380) - (1e16*1050 + 1e4*400)] = q W (1.138e19 - 1.05e19 - 4e6) = q W 8.79999999996e17
+    got = tr.photoconductance_S(1e16, 1e4, 1.1e16, 1e15, 1050.0, 400.0, 1000.0, 380.0, 0.02)
+    assert got == pytest.approx(sc.e * 0.02 * 8.79999999996e17, rel=1e-12)
+    # the fixed-mobility form q (dn mu_e + dp mu_h) W with the light mobilities misses the majority electrons'
+    # mobility drop n0 (1000 - 1050) = -5e17: by hand 1.38e18 / 8.8e17 - 1 = 57 % too high here
+    assert sc.e * 0.02 * 1e15 * 1380.0 / got - 1.0 == pytest.approx(1.38e18 / 8.79999999996e17 - 1.0, rel=1e-9)
 
 
 def test_full_ionisation_mass_action():

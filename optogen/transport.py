@@ -452,9 +452,9 @@ def photoconductance_S(n0_cm3, p0_cm3, n_cm3, p_cm3, mu_e_dark_cm2_Vs, mu_h_dark
                   = q [(n mu_e(n, p) + p mu_h(n, p)) - (n0 mu_e(n0, p0) + p0 mu_h(n0, p0))] W
 
     each state with its own mobilities (injection-dependent, e.g. Klaassen 1992).  This is
-    the quantity a photoconductance lifetime tester measures: the change of the wafer's sheet
-    conductance under light, from which the excess density is inferred (R. A. Sinton and
-    A. Cuevas, Appl. Phys. Lett. 69, 2510 (1996), doi:10.1063/1.117723, from memory).  With
+    the quantity a photoconductance lifetime measurement records: the change of the wafer's sheet
+    conductance under light, from which the excess density is inferred (D. K. Schroder, Semiconductor Material and Device Characterization, 3rd ed. (Wiley, 2006), ch. 7;
+    from memory).  With
     the same mobilities in both states it is q (Delta_n mu_e + Delta_p mu_h) W
     (S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007),
     sect. 13.2); with injection-dependent mobilities that form differs by about 1-3 %.
@@ -473,7 +473,8 @@ def photoconductance_S(n0_cm3, p0_cm3, n_cm3, p_cm3, mu_e_dark_cm2_Vs, mu_h_dark
 
     References
     ----------
-    R. A. Sinton and A. Cuevas, Appl. Phys. Lett. 69, 2510 (1996), doi:10.1063/1.117723.
+    D. K. Schroder, Semiconductor Material and Device Characterization, 3rd ed. (Wiley, 2006), ch. 7 (from memory).
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), sect. 13.2.
     """
     light = conductivity_S_cm(n_cm3, p_cm3, mu_e_light_cm2_Vs, mu_h_light_cm2_Vs)
     dark = conductivity_S_cm(n0_cm3, p0_cm3, mu_e_dark_cm2_Vs, mu_h_dark_cm2_Vs)

@@ -357,7 +357,7 @@ def test_depth_resolved_rear_j0_flux_is_the_public_surface_law(T):
 
 
 def test_pipeline_photoconductance_is_the_public_function():
-    # Sinton & Cuevas 1996 (from memory): the measured photoconductance is sigma(n, p) - sigma(n0, p0),
+    # Schroder 2006, ch. 7 (from memory): the measured photoconductance is sigma(n, p) - sigma(n0, p0),
     # each state with its own (here Klaassen 1992) mobilities; the run reports transport.photoconductance_S
     from optogen import materials, transport
     d = run_dict(WAFER)

@@ -173,7 +173,7 @@ def test_diffusion_length_and_photoconductance_by_hand():
 
 
 def test_photoconductance_is_the_dark_to_light_conductance_change():
-    # Sinton & Cuevas 1996 (from memory): the tester measures sigma(n, p) - sigma(n0, p0), each state with its
+    # Schroder 2006, ch. 7 (from memory): the measurement records sigma(n, p) - sigma(n0, p0), each state with its
     # own mobilities.  By hand, W = 0.02 cm, q = 1.602176634e-19 C (scipy.constants):
     # light n = 1.1e16, p = 1e15 at mu = (1000, 380); dark n0 = 1e16, p0 = 1e4 at mu = (1050, 400):
     # q W [(1.1e16*1000 + 1e15*380) - (1e16*1050 + 1e4*400)] = q W (1.138e19 - 1.05e19 - 4e6) = q W 8.79999999996e17

@@ -452,9 +452,8 @@ def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
     if "lifetime_curve" in det:
         lc = det["lifetime_curve"]
         out["lifetime_curve"] = {k: np.ravel(v) for k, v in lc.items()}
-    spectral = _spectral_response_curve(res)
-    if spectral is not None:
-        out["spectral_response"] = spectral
+    if "spectral_response" in det:
+        out["spectral_response"] = det["spectral_response"]
     if "profile" in det:
         p = det["profile"]
         out["depth_profile"] = {"depth_cm": p["depth_cm"], "delta_n_cm3": np.ravel(p["delta_n_cm3"]),
@@ -462,35 +461,3 @@ def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
                                 "electron_qfl_eV": np.ravel(p["electron_qfl_eV"]),
                                 "hole_qfl_eV": np.ravel(p["hole_qfl_eV"])}
     return out
-
-
-#: wavelengths of the spectral-response curve [-]
-SPECTRAL_POINTS = 400
-
-
-def _spectral_response_curve(res) -> dict[str, np.ndarray] | None:
-    """Quantum efficiency and responsivity of a detector against wavelength (single point).
-
-    The absorptance of the run's optics (front reflectance, light path, thickness) at the run's
-    temperature, on SPECTRAL_POINTS log-spaced wavelengths from the shortest wavelength of the
-    optical data (or 0.2 x the cut-off for a parametric edge) to 1.3 x the gap cut-off hc/Eg;
-    R(lambda) = eta g q lambda / (h c) with the photoconductive gain g (1 for a photodiode).
-    """
-    from . import detector as det_mod
-    from .constants import hc_eV_nm
-    from .light import Spectrum
-    from .materials import shortest_wavelength_nm
-    from .runner import _csv, _generation
-    ds, setup = res.dataset, res.details.get("setup")
-    if setup is None or "detectivity_cm_Hz05_W" not in ds:
-        return None
-    T = float(np.ravel(ds["temperature_K"].values)[0]) if "temperature_K" in ds else float(
-        res.scenario.get("absorber.temperature_K", 300.0))
-    cut = hc_eV_nm / float(setup.material.bandgap_eV(T))
-    short = shortest_wavelength_nm(setup.material, T, page=res.scenario.get("absorber.optical_page"),
-                                   csv_path=_csv(res.scenario))
-    lo = short * 1.0001 if short > 0 else 0.2 * cut
-    wl = np.geomspace(lo, 1.3 * cut, SPECTRAL_POINTS)
-    g, _ = _generation(setup, Spectrum(wl, np.ones_like(wl), "flat probe"), np.array([T]))
-    gain = float(np.ravel(ds["photoconductive_gain"].values)[0]) if "photoconductive_gain" in ds else 1.0
-    return det_mod.spectral_response(g.wavelength_nm, np.ravel(np.asarray(g.absorptance)[0]), gain)

@@ -13,7 +13,6 @@ spectrum, the optical data) is built once per slow-key group.
 """
 from __future__ import annotations
 
-import contextvars
 import dataclasses
 import datetime as _dt
 import itertools
@@ -280,11 +279,14 @@ def _csv(sc: Scenario):
 
 
 def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
-             details: bool = False) -> dict[str, dict[str, np.ndarray]]:
+             details: bool = False, trial: bool = False) -> dict[str, dict[str, np.ndarray]]:
     """All output blocks for `n` points, vectorised over the fast keys.
 
     values: swept fast keys -> 1-D arrays of length n [units of the key]
     details: also return curves for a single-point report (JV, lifetime, profile)
+    trial: the points are trial points of a search (the background-limit scan), not the
+        user's: a photodiode bias beyond a point's forward limit gives no value there
+        instead of an InputError
     """
     from .equilibrium import equilibrium
     sc = setup.scenario
@@ -377,7 +379,7 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
             prof["steady_state"]["photoconductance_S"] = out["steady_state"]["photoconductance_S"]
             out["steady_state"] = prof["steady_state"]
         if "detector" in sc.data:
-            out["detector"] = _detector_block(setup, eq, ss, T, nd, na, out)
+            out["detector"] = _detector_block(setup, eq, ss, T, nd, na, out, trial)
     if details:
         out["_details"] = extra
     return out
@@ -648,7 +650,7 @@ def _photoconductance(setup, eq, ss, T, nd, na):
                               *_mobilities(setup, T, nd, na, n, p), setup.thickness_cm)
 
 
-def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
+def _detector_block(setup, eq, ss, T, nd, na, out, trial=False) -> dict[str, np.ndarray]:
     """The `detector` JSON block: signal, background and dark currents, noise terms, D*, D*_BLIP."""
     from . import detector as det
     from .steady_state import solve
@@ -685,7 +687,7 @@ def _detector_block(setup, eq, ss, T, nd, na, out) -> dict[str, np.ndarray]:
                                        permittivity=setup.material.permittivity,
                                        electron_mass_m0=setup.material.electron_mass_m0(T),
                                        tau_srh_s=np.ravel(dark.tau_srh_s), ln_n0_cm3=ln_n0, ln_p0_cm3=ln_p0,
-                                       beyond_bias_limit="nan" if _SCANNING.get() else "raise")
+                                       beyond_bias_limit="nan" if trial else "raise")
     absorbed = gen.get("absorbed_fraction", np.full(n, np.nan))
     block["quantum_efficiency"] = np.where(np.asarray(irr) > 0, absorbed, np.nan)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -729,21 +731,13 @@ def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.
 
     def fn(T):
         T = np.atleast_1d(np.asarray(T, dtype=float))
-        token = _SCANNING.set(True)      # a forward bias beyond a trial temperature's limit: no value there
-        try:
-            with warnings.catch_warnings():     # the scan's own trial temperatures are not the run's points
-                warnings.simplefilter("ignore", DegenerateWarning)
-                warnings.simplefilter("ignore", PhysicsNoteWarning)
-                b = evaluate(setup, {"absorber.temperature_K": T}, T.size)["detector"]
-        finally:
-            _SCANNING.reset(token)
+        with warnings.catch_warnings():     # the scan's own trial temperatures are not the run's points
+            warnings.simplefilter("ignore", DegenerateWarning)
+            warnings.simplefilter("ignore", PhysicsNoteWarning)
+            b = evaluate(setup, {"absorber.temperature_K": T}, T.size, trial=True)["detector"]
         total, bg = b["noise_total_A_Hz05"], b["noise_background_A_Hz05"]
         return np.maximum(noise_without_A_Hz05(total, bg), 1e-300), bg
     return background_limit_temperature_K(fn, T_low_K, T_high_K)
-
-
-#: True while `background_limit` scans trial temperatures (read by `_detector_block`)
-_SCANNING = contextvars.ContextVar("optogen_background_limit_scan", default=False)
 
 
 def _block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
@@ -929,10 +923,39 @@ _FALLING_SPLITTING_NOTE = (
     "Voc is the splitting")
 
 
+#: wavelengths of the spectral-response curve [-]
+SPECTRAL_POINTS = 400
+
+
+def _spectral_response(setup: Setup, blocks) -> dict[str, np.ndarray]:
+    """Quantum efficiency and responsivity of a detector against wavelength (single point).
+
+    The absorptance of the run's optics (front reflectance, light path, thickness) at the run's
+    temperature, on SPECTRAL_POINTS log-spaced wavelengths from the shortest wavelength of the
+    optical data (or 0.2 x the cut-off for a parametric edge) to 1.3 x the gap cut-off hc/Eg;
+    R(lambda) = eta g q lambda / (h c) with the photoconductive gain g (1 for a photodiode).
+    """
+    from .constants import hc_eV_nm
+    from .detector import spectral_response
+    from .light import Spectrum
+    from .materials import shortest_wavelength_nm
+    sc = setup.scenario
+    T = float(sc.get("absorber.temperature_K", 300.0))
+    cut = hc_eV_nm / float(setup.material.bandgap_eV(T))
+    short = shortest_wavelength_nm(setup.material, T, page=sc.get("absorber.optical_page"), csv_path=_csv(sc))
+    lo = short * 1.0001 if short > 0 else 0.2 * cut
+    wl = np.geomspace(lo, 1.3 * cut, SPECTRAL_POINTS)
+    g, _ = _generation(setup, Spectrum(wl, np.ones_like(wl), "flat probe"), np.array([T]))
+    gain = float(np.ravel(blocks["detector"].get("photoconductive_gain", [1.0]))[0])
+    return spectral_response(g.wavelength_nm, np.ravel(np.asarray(g.absorptance)[0]), gain)
+
+
 def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
-    """Curves behind a single point: implied J-V and lifetime against delta n."""
+    """Curves behind a single point: implied J-V, lifetime against delta n, detector spectral response."""
     from .steady_state import implied_jv, lifetime_curve
     out: dict[str, Any] = {"setup": setup}
+    if "detector" in blocks:
+        out["spectral_response"] = _spectral_response(setup, blocks)
     eq, rec = details["equilibrium"], setup.recombination
     if rec is None or "steady_state" not in details:
         return out
@@ -946,10 +969,7 @@ def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
         if not bool(np.all(np.isfinite(np.asarray(jv.ff)))) and bool(np.all(np.asarray(jv.voc_V) > 0)):
             out["warnings"] = list(details.get("warnings", ())) + [_FALLING_SPLITTING_NOTE.format(
                 what="the implied FF, maximum-power point and efficiency are null")]
-        elif jv.efficiency is not None and not bool(np.all(np.asarray(jv.efficiency) <= 1.0)):
-            # P_max above the incident power: the splitting exceeds the photon energy (population
-            # inversion), where linear absorption no longer holds; no number is given
-            jv = dataclasses.replace(jv, efficiency=np.nan * np.asarray(jv.efficiency))
+        elif jv.efficiency is not None and not bool(np.all(np.isfinite(np.asarray(jv.efficiency)))):
             out["warnings"] = list(details.get("warnings", ())) + [
                 "implied efficiency is null: the maximum power would exceed the incident power, i.e. the "
                 "splitting exceeds the photon energy of the light (population inversion; the absorption "

@@ -765,7 +765,8 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     G = J_gen / (q W) and the curve ends at (Voc, 0).  The maximum-power point by golden
     section over Delta n (`_mpp_flat`); vmp, jmp, pmax, ff, efficiency are NaN where the
     splitting falls as Delta n rises at the steady state (`splitting_falls`: an unstable
-    uniform plasma, V -> J not single-valued).
+    uniform plasma, V -> J not single-valued); efficiency is also NaN where P_max would exceed
+    the incident power (a splitting above the photon energy: population inversion).
     """
     jg = np.asarray(photocurrent_mA_cm2, dtype=float)
     check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA/cm^2")
@@ -802,6 +803,10 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     if irradiance_W_m2 is not None:
         irr = check_range("light.irradiance_W_m2", irradiance_W_m2, 0.0, None, low_open=True, unit="W m^-2")
         eff = (pmax / (np.broadcast_to(irr, shape).reshape(-1) * 0.1)).reshape(shape)
+        # P_max above the incident power: the splitting exceeds the photon energy (population
+        # inversion), where linear absorption no longer holds: no number (NaN), never an efficiency > 1
+        with np.errstate(invalid="ignore"):
+            eff = np.where(eff <= 1.0, eff, np.nan)
 
     def sh(a):
         a = np.asarray(a).reshape(shape)

@@ -476,7 +476,7 @@ def implied_jv(voltage_V, current_mA_cm2, vmp=None, jmp=None, voc=None, ff=None)
     ax2.set_ylim(0.0, float(np.nanmax(p)) * 1.25)
     v_end = voc if voc is not None else float(v[np.isfinite(j) & (j >= 0)].max())
     ax.set_xlim(min(0.0, v.min()), v_end * 1.05)
-    lines = [f"Vmp = {vmp:.3f} V", f"Jmp = {jmp:.2f} mA cm⁻²"]
+    lines = [f"Vmp = {vmp:.3f} V", f"Jmp = {_number(jmp)} mA cm⁻²"]
     if voc is not None:
         lines.insert(0, f"implied Voc = {voc:.3f} V")
     if ff is not None:

@@ -959,11 +959,23 @@ def _point_details(setup: Setup, details, blocks) -> dict[str, Any]:
     eq, rec = details["equilibrium"], setup.recombination
     if rec is None or "steady_state" not in details:
         return out
-    lc = lifetime_curve(setup.material, eq, rec, setup.thickness_cm)
+    # 1e12..1e17 cm^-3, reaching down to a tenth of the operating point when it lies lower
+    dn_op = float(np.ravel(details["steady_state"].delta_n_cm3)[0])
+    low = min(12.0, np.log10(dn_op) - 1.0) if np.isfinite(dn_op) and dn_op > 0 else 12.0
+    lc = lifetime_curve(setup.material, eq, rec, setup.thickness_cm,
+                        delta_n_cm3=np.logspace(low, 17.0, 51 + int(round(5 * (12.0 - low)))))
     out["lifetime_curve"] = {k: np.ravel(getattr(lc, k)) for k in (
         "delta_n_cm3", "tau_eff_s", "tau_srh_s", "tau_radiative_s", "tau_auger_s", "tau_surface_s")}
-    jph = float(blocks.get("generation", {}).get("photocurrent_mA_cm2", [0.0])[0])
+    from .constants import q_C
+    gen = blocks.get("generation", {})
+    jph = float(gen.get("photocurrent_mA_cm2", [0.0])[0])
     irr = float(blocks.get("light", {}).get("irradiance_W_m2", [0.0])[0])
+    g_bg = float(gen.get("background_average_cm3_s", [np.nan])[0])
+    if np.isfinite(g_bg) and g_bg > 0:
+        # the steady state is lit by the source and the background together: the J-V is too (so that
+        # Voc is the reported splitting); an efficiency against the source alone does not apply
+        jph += q_C * setup.thickness_cm * g_bg * 1e3
+        irr = 0.0
     if jph > 0 and bool(np.all(details["steady_state"].converged)):
         jv = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph, irradiance_W_m2=irr if irr > 0 else None)
         if not bool(np.all(np.isfinite(np.asarray(jv.ff)))) and bool(np.all(np.asarray(jv.voc_V) > 0)):

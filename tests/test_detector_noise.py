@@ -407,3 +407,12 @@ def test_built_in_potential_when_n_i_is_below_the_float_range():
         warnings.simplefilter("error", RuntimeWarning)
         v = det.built_in_potential_V(4.0, 1e18, 1e15, 0.0, 0.81)
     assert float(v) == 0.81
+
+
+def test_implied_jv_with_a_background_ends_at_the_reported_splitting():
+    # analytic: the steady state is lit by the source and the background together, so the implied J-V
+    # built from the same total generation ends at Voc = the steady-state splitting; P_max against the
+    # source's irradiance alone is not an efficiency (null)
+    d = run_dict(INSB)
+    assert d["implied_jv"]["voc_V"] == pytest.approx(d["steady_state"]["splitting_eV"], rel=1e-9)
+    assert d["implied_jv"]["efficiency"] is None

@@ -28,7 +28,7 @@ from . import __version__, schema
 from .errors import InputError, check_range, relabel
 from .scenario import Scenario, unit_of
 
-LIGHT_SCALING_KEYS = ("suns", "irradiance_W_m2", "power_W", "photon_flux_cm2_s")
+LIGHT_SCALING_KEYS = schema.LIGHT_SCALINGS   # declared once in optogen.schema
 FAST_KEYS = set(schema.fast_keys())        # temperature, doping, resistivity and the light scalings
 #: resistivity is taken as the room-temperature value (ASTM F723 is at 23 C; we use 300 K)
 RESISTIVITY_REFERENCE_K = 300.0

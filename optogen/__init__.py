@@ -7,20 +7,14 @@ Python API::
     res = optogen.run(sc.with_values({"light.suns": 0.5}))
     res.to_dict(); res.to_dataset()
 """
-from importlib.metadata import PackageNotFoundError, version as _version
-
-try:
-    __version__ = _version("optogen")
-except PackageNotFoundError:  # running from a source tree
-    __version__ = "0.0.0+src"
-
-from .errors import InputError  # noqa: E402
-from .scenario import Scenario, load_scenario  # noqa: E402
+from ._version import __version__
+from .errors import InputError
+from .scenario import Scenario, load_scenario
 
 
 def run(scenario, **kwargs):
-    """Run a scenario (a Scenario, a path or TOML text); see optogen.runner.run."""
-    from .runner import run as _run
+    """Run a scenario (a Scenario, a path or TOML text); see `optogen.pipeline.run`."""
+    from .pipeline import run as _run     # the pipeline imports the whole core: only when a run is asked for
     if not isinstance(scenario, Scenario):
         scenario = load_scenario(scenario)
     return _run(scenario, **kwargs)

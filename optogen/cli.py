@@ -16,7 +16,7 @@ import traceback
 import warnings
 from pathlib import Path
 
-from . import __version__
+from ._version import __version__
 from .errors import InputError
 
 EXIT_INPUT = 2
@@ -126,7 +126,7 @@ def _dispatch(args) -> int:
     from .scenario import MAX_POINTS_WITHOUT_CONFIRMATION, load_scenario
     sc = load_scenario(Path(args.scenario), _overrides(args.set))
     if args.command == "check":
-        from .runner import check
+        from .pipeline import check
         check(sc)
         print(f"{args.scenario}: ok ({sc.n_points} point{'s' if sc.n_points != 1 else ''})")
         return 0
@@ -136,7 +136,7 @@ def _dispatch(args) -> int:
         raise InputError("sweep", f"{sc.n_points} points",
                          f"at most {MAX_POINTS_WITHOUT_CONFIRMATION} without --yes",
                          "add --yes, and --out DIR to keep the result on disk")
-    from .runner import run
+    from .pipeline import run
     from . import report
     with warnings.catch_warnings(record=True) as caught:     # one line each, no source lines
         warnings.simplefilter("always")

@@ -605,7 +605,7 @@ def background_limit_temperature_K(fn, T_low_K, T_high_K, points=256, xtol_K=1e-
 
     fn(T) takes an array of temperatures [K] and returns (other, background) of
     the same shape: any pair of positive figures of one kind whose ratio
-    crosses 1 at the limit.  The pipeline (`optogen.runner.background_limit`)
+    crosses 1 at the limit.  The pipeline (`optogen.pipeline.background_limit`)
     passes noise currents [A/Hz^1/2]: the total noise without the background
     term (`noise_without_A_Hz05`) and the background noise term; thermal and
     background generation rates [cm^-3 s^-1] serve for a g-r-limited

@@ -83,3 +83,11 @@ def relabel(names: Mapping[str, str]):
             if (old.endswith(".") and exc.field.startswith(old)) or exc.field == old:
                 raise InputError(new + exc.field[len(old):], exc.value, exc.allowed, exc.hint) from None
         raise
+
+
+class DegenerateWarning(UserWarning):
+    """A splitting above the band gap: degenerate carriers (Fermi-Dirac statistics)."""
+
+
+class PhysicsNoteWarning(UserWarning):
+    """A quantity is null because it does not apply (light below the gap, no mobilities, ...)."""

@@ -25,7 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import optics
-from .constants import q_C
+from .constants import hc_eV_nm, q_C
 from .errors import InputError
 
 MAX_CHUNK_BYTES = 8 * 2**20        #: bound on one temperature chunk of the (T, L, X) array [bytes]
@@ -251,3 +251,34 @@ def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0,
     Rf = optics.front_reflectance(front_reflectance, wl, oc.n, oc.k, base_dir=base_dir)
     return compute(wl, flux, oc.alpha_cm1, oc.n, thickness_cm, Rf, rear_reflectance,
                    light_path, depth_cm, temperature_K=T)
+
+
+def absorbed_fraction_below_eV(wavelength_nm, absorbed_photon_flux_cm2_s_nm, rows, energy_eV):
+    """Fraction of the absorbed photons with h nu <= energy_eV, per point [-].
+
+    Used with the quasi-Fermi-level splitting as `energy_eV`: such photons see net gain
+    instead of absorption once the quasi-Fermi levels are split by more than their energy
+    (M. G. A. Bernard and G. Duraffourg, Phys. Status Solidi 1, 699 (1961), from memory),
+    so linear absorption, the model behind G, no longer holds for them.
+
+    Parameters
+    ----------
+    wavelength_nm : wavelength grid (L,) [nm]
+    absorbed_photon_flux_cm2_s_nm : absorbed spectral photon flux (R, L) or (L,) [cm^-2 s^-1 nm^-1]
+    rows : for each point, the row of the flux it uses (P,) [-]
+    energy_eV : the threshold photon energy of each point (P,) [eV]; NaN counts nothing
+
+    Returns
+    -------
+    Fraction (P,) of the absorbed photon flux at or below energy_eV [-] (0 where nothing is absorbed).
+    """
+    wl = np.asarray(wavelength_nm, dtype=float)
+    absorbed = np.reshape(absorbed_photon_flux_cm2_s_nm, (-1, wl.size)) * trapezoid_weights(wl)
+    e_asc = (hc_eV_nm / wl)[::-1]                             # photon energies, rising [eV]
+    cum = np.cumsum(absorbed[:, ::-1], axis=1)
+    total = cum[:, -1]
+    k = np.searchsorted(e_asc, np.nan_to_num(energy_eV, nan=-np.inf), side="right")
+    rows = np.asarray(rows).reshape(-1)
+    below = np.where(k > 0, cum[rows, np.maximum(k - 1, 0)], 0.0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(total[rows] > 0, below / np.where(total[rows] > 0, total[rows], 1.0), 0.0)

@@ -351,6 +351,30 @@ class ProfileSolution:
         lo = self.delta_n_cm3.min(axis=-1)
         return np.divide(lo, hi, out=np.ones_like(hi), where=hi > 0)
 
+    def lifetimes_s(self, bulk_rates_cm3_s, tau_eff_fallback_s=np.inf):
+        """Lifetimes from the depth-integrated losses: tau_x = <dn> W / integral(U_x dx) [s].
+
+        Parameters
+        ----------
+        bulk_rates_cm3_s : mapping mechanism -> U_x at the nodes (..., X) [cm^-3 s^-1]
+            (e.g. srh, radiative, auger); the surfaces are added from the solution's own
+            front and rear losses under the key "surface"
+        tau_eff_fallback_s : tau_eff where no carriers are generated [s]
+
+        Returns
+        -------
+        (taus, tau_eff_s, losses): taus a dict mechanism -> tau [s] (inf where a mechanism
+        removes nothing), tau_eff_s = <dn> W / integral(G dx) [s], losses a dict mechanism ->
+        depth-integrated loss [cm^-2 s^-1].
+        """
+        losses = {k: np.asarray(v) @ self.control_volume_cm for k, v in bulk_rates_cm3_s.items()}
+        losses["surface"] = self.front_loss_cm2_s + self.rear_loss_cm2_s
+        stock = self.average_cm3() * self.thickness_cm            # <dn> W [cm^-2]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            taus = {k: np.where(v > 0, stock / np.where(v > 0, v, 1.0), np.inf) for k, v in losses.items()}
+            tau_eff = np.where(self.generation_cm2_s > 0, stock / self.generation_cm2_s, tau_eff_fallback_s)
+        return taus, tau_eff, losses
+
     def balance(self):
         """Carrier balance per unit area [cm^-2 s^-1]: dict of generation, bulk_recombination,
         front_loss, rear_loss and imbalance (= generation - the three losses)."""

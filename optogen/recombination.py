@@ -449,8 +449,8 @@ def surface_j0_flux_cm2_s(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, ni2_shift=0.0,
     n_i,eff^2 = n0 p0 exp(ni2_shift),  J0(T) from `j0_at_temperature_fA_cm2`.
 
     n p - n_i,eff^2 comes from `excess_product_cm6` (no cancellation).  The depth-resolved
-    surface (runner, optogen.profile.surface_J0) and the detector's low-injection
-    S_eff = dUs/ddn at dn = 0 = J0 (n0 + p0) / (q n0 p0) call this function; `surface_j0`
+    surface (the pipeline's depth-resolved run) and the detector's low-injection
+    S_eff = dUs/ddn at dn = 0 = J0 (n0 + p0) / (q n0 p0) (`surface_velocity_j0_cm_s`) call this function; `surface_j0`
     (called by `PreparedRates.rates`) is the same law divided by W, through the same kernel
     and the same J0 temperature scaling.
 
@@ -519,6 +519,30 @@ def surface_velocity(delta_n_cm3, S_cm_s, thickness_cm):
     delta_n_cm3 [cm^-3]; S_cm_s [cm/s]; thickness_cm [cm].
     """
     return np.asarray(S_cm_s) * np.asarray(delta_n_cm3, float) / np.asarray(thickness_cm)
+
+
+def surface_velocity_j0_cm_s(n0_cm3, p0_cm3, J0_fA_cm2):
+    """Low-injection recombination velocity of a surface described by a J0 [cm/s].
+
+    S_eff = dUs/ddn at dn = 0 of the one J0 law (`surface_j0_flux_cm2_s`)
+          = J0 (n0 + p0) / (q n0 p0),
+    i.e. J0 N / (q n_i^2) in extrinsic material and finite for an intrinsic one.
+
+    Parameters
+    ----------
+    n0_cm3, p0_cm3 : dark electron and hole densities [cm^-3]
+    J0_fA_cm2 : saturation current density of the surface at the absorber's temperature [fA/cm^2]
+        (carry a quoted value to T with `j0_at_temperature_fA_cm2` first)
+
+    Returns
+    -------
+    S_eff [cm/s], broadcast over the inputs.
+
+    References
+    ----------
+    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (from memory).
+    """
+    return surface_j0_flux_cm2_s(n0_cm3, p0_cm3, 0.0, J0_fA_cm2, J0_reference_K=None, derivative=True)[1]
 
 
 # ---------------------------------------------------------------------------

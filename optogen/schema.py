@@ -160,18 +160,18 @@ def _k(path, kinds, unit="-", default=None, low=None, high=None, *, low_open=Fal
 SECTIONS: dict[str, Section] = {s.name: s for s in (
     Section("title", "report", "a title for the summary and the files"),
     Section("description", "report", "free text, kept in the files"),
-    Section("absorber", "runner.build, materials, equilibrium", "the absorber (required)", required=True),
+    Section("absorber", "pipeline.build, materials, equilibrium", "the absorber (required)", required=True),
     Section("light", "light.source_from_table", "the light source"),
     Section("optics", "generation, optics", "front and rear optics"),
     Section("recombination", "recombination.Recombination.from_table", "recombination mechanisms"),
-    Section("background", "runner.build, light", "a warm scene seen by the absorber"),
+    Section("background", "pipeline.build, light", "a warm scene seen by the absorber"),
     Section("detector", "detector.detector_from_table", "detector figures"),
-    Section("solver", "runner, profile", "solver settings"),
+    Section("solver", "pipeline, profile", "solver settings"),
     Section("sweep", "scenario.sweep_axes", "swept keys (dotted paths) and their values"),
 )}
 
 _NUM = NUMBER
-_R = "runner.build"
+_R = "pipeline.build"
 _DOMAIN_T = dict(low=T_MIN_K, high=T_MAX_K)
 
 _KEYS: list[Key] = [
@@ -186,15 +186,15 @@ _KEYS: list[Key] = [
        doc="Cd fraction x of Hg(1-x)Cd(x)Te"),
     _k("absorber.thickness_um", _NUM, "um", "100 in the dark; required under light",
        THICKNESS_MIN_um, THICKNESS_MAX_um, consumer=_R, doc="absorber thickness W"),
-    _k("absorber.temperature_K", _NUM, "K", 300.0, **_DOMAIN_T, sweep=FAST, consumer="runner.evaluate",
+    _k("absorber.temperature_K", _NUM, "K", 300.0, **_DOMAIN_T, sweep=FAST, consumer="pipeline.evaluate",
        doc="absorber temperature"),
-    _k("absorber.donors_cm3", _NUM, "cm-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="runner._doping",
+    _k("absorber.donors_cm3", _NUM, "cm-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="pipeline.setup.doping_of",
        doc="donor density"),
-    _k("absorber.acceptors_cm3", _NUM, "cm-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="runner._doping",
+    _k("absorber.acceptors_cm3", _NUM, "cm-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="pipeline.setup.doping_of",
        doc="acceptor density"),
-    _k("absorber.resistivity_ohm_cm", _NUM, "ohm cm", None, 1e-6, 1e9, sweep=FAST, consumer="runner._doping",
+    _k("absorber.resistivity_ohm_cm", _NUM, "ohm cm", None, 1e-6, 1e9, sweep=FAST, consumer="pipeline.setup.doping_of",
        doc="300 K resistivity of an n- or p-type wafer, with dopant, instead of the densities"),
-    _k("absorber.dopant", STRING, "", None, choices=("n", "p"), consumer="runner._doping",
+    _k("absorber.dopant", STRING, "", None, choices=("n", "p"), consumer="pipeline.setup.doping_of",
        doc='"n" or "p", with resistivity_ohm_cm'),
     _k("absorber.donor_species", STRING, "", None, consumer="equilibrium", doc="donor species of the material"),
     _k("absorber.acceptor_species", STRING, "", None, consumer="equilibrium",
@@ -360,11 +360,11 @@ _KEYS: list[Key] = [
     _k("background.field_of_view_deg", _NUM, "deg", 90.0, 0.0, 90.0, low_open=True, consumer="light.blackbody",
        doc="field-of-view half-angle (not with f_number)"),
     _k("background.emissivity", _NUM, "-", 1.0, 0.0, 1.0, consumer="light.blackbody", doc="grey emissivity"),
-    _k("background.f_number", _NUM, "-", None, F_NUMBER_MIN, F_NUMBER_MAX, low_open=True, consumer="runner.build",
+    _k("background.f_number", _NUM, "-", None, F_NUMBER_MIN, F_NUMBER_MAX, low_open=True, consumer="pipeline.build",
        doc="cold-stop f-number (instead of field_of_view_deg)"),
-    _k("background.cuton_nm", _NUM, "nm", None, 0.0, 1e6, low_open=True, consumer="runner.build",
+    _k("background.cuton_nm", _NUM, "nm", None, 0.0, 1e6, low_open=True, consumer="pipeline.build",
        doc="cold filter cut-on wavelength"),
-    _k("background.cutoff_nm", _NUM, "nm", None, 0.0, 1e6, low_open=True, consumer="runner.build",
+    _k("background.cutoff_nm", _NUM, "nm", None, 0.0, 1e6, low_open=True, consumer="pipeline.build",
        doc="cold filter cut-off wavelength"),
     # -- [detector] ------------------------------------------------------------------------
     _k("detector.mode", STRING, "", "photoconductor", choices=("photoconductor", "photodiode"), consumer="detector",
@@ -381,11 +381,11 @@ _KEYS: list[Key] = [
     _k("detector.generation_lifetime_s", _NUM, "s", None, 0.0, 1e6, low_open=True, consumer="detector",
        doc="depletion-region generation lifetime (photodiode)"),
     # -- [solver] --------------------------------------------------------------------------
-    _k("solver.depth_resolved", BOOL, "", False, consumer="runner._depth_resolved", doc="solve dn(x) over depth"),
-    _k("solver.voc_plane", STRING, "", "front", choices=("front", "rear"), consumer="runner._depth_resolved",
+    _k("solver.depth_resolved", BOOL, "", False, consumer="pipeline.point._depth_resolved", doc="solve dn(x) over depth"),
+    _k("solver.voc_plane", STRING, "", "front", choices=("front", "rear"), consumer="pipeline.point._depth_resolved",
        doc="plane of the reported levels"),
     _k("solver.nodes", INTEGER, "-", 200, 3, MAX_NODES, consumer="profile.mesh", doc="depth nodes requested"),
-    _k("solver.chunk_size", INTEGER, "points", 100_000, 1, MAX_CHUNK, consumer="runner.run",
+    _k("solver.chunk_size", INTEGER, "points", 100_000, 1, MAX_CHUNK, consumer="pipeline.run",
        doc="operating points per chunk"),
 ]
 
@@ -682,7 +682,7 @@ def _short(values):
 def check_models(data: Mapping[str, Any]) -> None:
     """Check the model-name keys (`Key.models`) against the core's dispatch tables.
 
-    Imports the consuming modules, so it runs in `optogen check` (runner.build), not
+    Imports the consuming modules, so it runs in `optogen check` (pipeline.build), not
     in `validate`.
     """
     import importlib

@@ -20,13 +20,13 @@ import numpy as np
 
 from ._dispatch import pick
 from .constants import kT_eV, q_C
-from .equilibrium import ni_nc_nv_eg
+from .equilibrium import equilibrium, ni_nc_nv_eg
 from .errors import InputError, check_range
 
 __all__ = [
     "mobility_klaassen1992", "mobility_masetti1983", "mobility_caughey_thomas",
-    "mobility_cm2_Vs", "MOBILITY_MODELS", "carriers_full_ionisation",
-    "doping_to_resistivity", "resistivity_to_doping", "conductivity_S_cm",
+    "mobility_cm2_Vs", "MOBILITY_MODELS", "missing_mobility_record", "carriers_full_ionisation",
+    "doping_to_resistivity", "resistivity_to_doping", "match_resistivity_cm3", "conductivity_S_cm",
     "diffusivity_cm2_s", "ambipolar_diffusivity_cm2_s", "diffusion_length_cm",
     "photoconductance_S",
 ]
@@ -276,6 +276,27 @@ _ALIASES = {"klaassen": "klaassen1992", "masetti": "masetti1983", "ct": "caughey
             "caughey-thomas1967": "caughey_thomas", "caughey": "caughey_thomas"}
 
 
+def missing_mobility_record(material) -> str | None:
+    """The missing Caughey-Thomas record of a material whose mobility model needs it.
+
+    Parameters
+    ----------
+    material : `optogen.materials.Material`
+
+    Returns
+    -------
+    "mobility_e" or "mobility_h" when `material.mobility_model` is caughey_thomas and that
+    record is absent, else None.
+    """
+    if pick("absorber.mobility_model", material.mobility_model, MOBILITY_MODELS, _ALIASES) \
+            is not MOBILITY_MODELS["caughey_thomas"]:
+        return None
+    for k in ("mobility_e", "mobility_h"):
+        if getattr(material, k, None) is None:
+            return k
+    return None
+
+
 def carriers_full_ionisation(material, T_K, donors_cm3, acceptors_cm3):
     """Equilibrium (n0, p0) [cm^-3] with every dopant ionised.
 
@@ -411,6 +432,47 @@ def resistivity_to_doping(material, resistivity_ohm_cm, dopant_type, T_K=300.0, 
         hi = np.where(too_resistive, hi, mid)
     out = np.exp(0.5 * (lo + hi))
     return out if out.ndim else float(out)
+
+
+def match_resistivity_cm3(material, resistivity_ohm_cm, dopant_type, T_K=300.0, model=None,
+                          equilibrium_options=None, iterations: int = 20):
+    """Dopant density whose dark conductivity, with incomplete ionisation, is 1/rho.
+
+    Starts from the full-ionisation answer of `resistivity_to_doping` (the ASTM F723
+    convention) and rescales N by (1/rho) / sigma(N), sigma from the Fermi-Dirac,
+    incomplete-ionisation equilibrium (`optogen.equilibrium.equilibrium`) and the
+    mobilities at its carrier densities, until they agree to 1e-12 (a few steps: sigma
+    is nearly linear in N).
+
+    Parameters
+    ----------
+    material : `optogen.materials.Material`
+    resistivity_ohm_cm : target resistivity rho > 0 [ohm cm]
+    dopant_type : "n" (donors) or "p" (acceptors)
+    T_K : temperature of the resistivity [K]
+    model : mobility model name (default `material.mobility_model`)
+    equilibrium_options : keyword arguments of `optogen.equilibrium.equilibrium`
+        (donor, acceptor, ni_model, bgn_model, incomplete_ionisation)
+    iterations : most rescaling steps [-]
+
+    Returns
+    -------
+    The donor ("n") or acceptor ("p") density [cm^-3], shaped like `resistivity_ohm_cm`.
+    """
+    rho = _arr(check_range("absorber.resistivity_ohm_cm", resistivity_ohm_cm, 0.0, low_open=True,
+                           unit="ohm cm"))
+    N = _arr(resistivity_to_doping(material, rho, dopant_type, T_K, model))
+    T = np.broadcast_to(_arr(T_K), N.shape)
+    for _ in range(iterations):
+        nd, na = _doping_pair(N, dopant_type)
+        eq = equilibrium(material, T, nd, na, **(equilibrium_options or {}))
+        sigma = conductivity_S_cm(eq.n0_cm3, eq.p0_cm3,
+                                  *mobility_cm2_Vs(material, T, nd, na, eq.n0_cm3, eq.p0_cm3, model))
+        ratio = 1.0 / (rho * sigma)
+        N = N * ratio
+        if np.all(np.abs(ratio - 1.0) < 1e-12):
+            break
+    return N
 
 
 # ---------------------------------------------------------------------------

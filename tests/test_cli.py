@@ -134,8 +134,8 @@ def _boom(*args, **kwargs):
 
 
 def test_internal_error_is_exit_1_one_line_without_traceback(capsys, monkeypatch):
-    import optogen.runner
-    monkeypatch.setattr(optogen.runner, "run", _boom)
+    import optogen.pipeline
+    monkeypatch.setattr(optogen.pipeline, "run", _boom)
     monkeypatch.delenv("OPTOGEN_DEBUG", raising=False)
     assert main(["run", str(SCEN / "rooftop_n_wafer.toml")]) == 1
     err = capsys.readouterr().err
@@ -146,8 +146,8 @@ def test_internal_error_is_exit_1_one_line_without_traceback(capsys, monkeypatch
 
 @pytest.mark.parametrize("how", ["flag", "flag_after", "env"])
 def test_debug_shows_the_traceback(capsys, monkeypatch, how):
-    import optogen.runner
-    monkeypatch.setattr(optogen.runner, "run", _boom)
+    import optogen.pipeline
+    monkeypatch.setattr(optogen.pipeline, "run", _boom)
     args = ["run", str(SCEN / "rooftop_n_wafer.toml")]
     if how == "flag":
         args = ["--debug", *args]

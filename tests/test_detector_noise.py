@@ -153,7 +153,8 @@ def test_photodiode_detectivity_never_above_blip(side, bias, W, T, ni, N, nj, D,
     # a forward bias (> 0) at or above V_bi - 3kT/q is refused, zero and reverse bias never;
     # V_bi = kT/q ln(N nj / ni^2) capped to [0, Eg] (Sze & Ng 2007 sec. 2.2, from memory)
     kT = K_B * T / Q
-    vbi = min(max(kT * (math.log(N) + math.log(nj) - 2 * math.log(ni)), 0.0), eg)
+    # the base doping is the majority density max(n0, p0) (= N when extrinsic; the draws allow ni > N)
+    vbi = min(max(kT * (math.log(max(n0, p0)) + math.log(nj) - 2 * math.log(ni)), 0.0), eg)
     if bias > 0 and bias >= vbi - 3 * kT * (1 - 1e-12):
         if bias > (vbi - 3 * kT) * (1 + 1e-9) + 1e-12:
             with pytest.raises(InputError, match="detector.bias_V"):

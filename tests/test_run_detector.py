@@ -439,7 +439,7 @@ def test_rear_j0_of_an_intrinsic_base():
     # n0 = p0 = n_i = 1e10: S = 10e-15 A/cm^2 * 2e10 / (1.602e-19 C * 1e20) = 1.248e-5 cm/s (by hand);
     # extrinsic n0 = 1e16, p0 = 1e4: S = 1e-14 * (1e16 + 1e4) / (1.602e-19 * 1e20) = 6.242 cm/s
     from types import SimpleNamespace
-    from optogen.runner import _rear_S_cm_s
+    from optogen.pipeline.point import _rear_S_cm_s
     d = SimpleNamespace(rear_S_cm_s=None)
     rec = SimpleNamespace(rear_S_cm_s=None, j0_at_fA_cm2=lambda material, T, side: 10.0)
     for n0, p0, expected in ((1e10, 1e10, 1e-14 * 2e10 / (Q * 1e20)), (1e16, 1e4, 1e-14 * (1e16 + 1e4) / (Q * 1e20))):

@@ -64,7 +64,7 @@ def test_recombination_table_keys_build_a_recombination():
 
 
 def test_fast_keys_are_the_runner_fast_keys():
-    from optogen.runner import FAST_KEYS, LIGHT_SCALING_KEYS
+    from optogen.pipeline import FAST_KEYS, LIGHT_SCALING_KEYS
     assert FAST_KEYS == set(schema.fast_keys())
     assert {f"light.{k}" for k in LIGHT_SCALING_KEYS} <= FAST_KEYS
 
@@ -236,7 +236,7 @@ def test_scenario_size_ceiling(tmp_path):
 
 @pytest.mark.filterwarnings("ignore:.*depth nodes cannot resolve")
 def test_depth_resolved_sweep_chunks_are_bounded(monkeypatch):
-    from optogen import runner
+    from optogen.pipeline import sweep as runner
     seen = []
     real = runner.evaluate
 
@@ -319,7 +319,7 @@ def test_markdown_table_names_every_key_with_its_range():
                                           ("recombination.intrinsic", "richter2012", "richter2021x"),
                                           ("recombination.bandgap_narrowing", "slotboom", "slotbom9")])
 def test_check_knows_the_model_names_and_their_aliases(key, good, bad):
-    from optogen.runner import check
+    from optogen.pipeline import check
     check(load_scenario(WAFER).with_values({key: good}))
     with pytest.raises(InputError) as err:
         check(load_scenario(WAFER).with_values({key: bad}))

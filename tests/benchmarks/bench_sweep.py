@@ -15,7 +15,7 @@ import tracemalloc
 import numpy as np
 
 import optogen
-from optogen.runner import build, evaluate
+from optogen.pipeline import build, evaluate
 
 WAFER = """
 title = "benchmark wafer"

@@ -1,0 +1,199 @@
+"""Pipeline, step 4: running a scenario: a single point or every point of its sweep grid.
+
+Keys the core broadcasts over ("fast" keys: temperature, doping, resistivity and the light
+scaling) are evaluated as arrays in chunks; every other swept key ("slow" keys: thickness,
+wavelength, defect density, ...) is an outer loop over its values, each step vectorised over
+the fast keys.  Everything that does not depend on the swept keys (the material, the spectrum,
+the optical data) is built once per slow-key group.  tqdm and dask are imported only when
+used (a progress bar, `--workers` / `--scheduler`).
+"""
+from __future__ import annotations
+
+import itertools
+import math
+import sys
+
+import numpy as np
+import xarray as xr
+
+from .. import schema
+from ..errors import InputError
+from ..scenario import Scenario
+from .point import background_limit, evaluate, point_details
+from .result import Result, add_attrs, labelled_dataset
+from .setup import FAST_KEYS, Setup, build, swept_light_scaling
+
+
+DEFAULT_CHUNK = 100_000
+
+
+#: depth-resolved chunks: points x (at most profile.mesh's 20001 nodes) stays below this [cells]
+MAX_PROFILE_CELLS = 20_000_000
+
+
+MAX_PROFILE_NODES = 20_001
+
+
+#: most dask workers a run may start
+MAX_WORKERS = 1024
+
+
+def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None = None,
+        scheduler: str | None = None, chunk_size: int | None = None) -> Result:
+    """Run a scenario: a single point, or every point of its sweep grid.
+
+    progress: show a tqdm bar (None: only on a terminal, after about 1 s) [-]
+    workers: run the chunks on a local dask cluster with this many workers [-]
+    scheduler: address of an existing dask.distributed scheduler [-]
+    chunk_size: points per chunk (default from [solver] chunk_size or 100000) [-]
+    """
+    sc = scenario
+    if not sc.sweep:
+        setup = build(sc)
+        blocks = evaluate(setup, {}, 1, details=True)
+        details = blocks.pop("_details")
+        details.update(point_details(setup, details, blocks))
+        if "implied_jv" in details:
+            jv = details["implied_jv"]
+            blocks["implied_jv"] = {"voc_V": np.ravel(jv.voc_V), "vmp_V": np.ravel(jv.vmp_V),
+                                    "jmp_mA_cm2": np.ravel(jv.jmp_mA_cm2), "ff": np.ravel(jv.ff),
+                                    "pmax_mW_cm2": np.ravel(jv.pmax_mW_cm2),
+                                    "efficiency": np.ravel(np.nan if jv.efficiency is None else jv.efficiency)}
+        ds = labelled_dataset(blocks, (), [])
+        ds = ds.isel({"point": 0}) if "point" in ds.dims else ds
+        add_attrs(ds, sc)
+        add_background_limit(ds, setup)
+        return Result(sc, ds, details, tuple(details.get("warnings", ())))
+
+    chunk = chunk_size if chunk_size is not None else sc.get("solver.chunk_size", DEFAULT_CHUNK)
+    chunk = schema.check_value("solver.chunk_size", chunk)
+    if sc.get("solver.depth_resolved", False) is True or any(
+            a.key == "solver.depth_resolved" and bool(np.any(a.values)) for a in sc.sweep):
+        chunk = min(chunk, max(1, MAX_PROFILE_CELLS // MAX_PROFILE_NODES))   # bounded Newton working memory
+    axes = list(sc.sweep)
+    unit_scaling = swept_light_scaling(sc)
+    fast = [a for a in axes if a.key in FAST_KEYS]
+    slow = [a for a in axes if a.key not in FAST_KEYS]
+    fast_grid = np.meshgrid(*[a.values for a in fast], indexing="ij") if fast else []
+    fast_flat = {a.key: g.reshape(-1) for a, g in zip(fast, fast_grid)}
+    n_fast = int(np.prod([a.values.size for a in fast])) if fast else 1
+    slow_combos = list(itertools.product(*[range(a.values.size) for a in slow]))
+
+    client = _dask_client(workers, scheduler) if (workers or scheduler) else None
+    total = len(slow_combos) * n_fast
+    merged: dict[str, dict[str, np.ndarray]] = {}     # filled in place: no second copy of the grid
+
+    def store(offset, part):
+        for block, vals in part.items():
+            for k, v in vals.items():
+                dest = merged.setdefault(block, {})
+                if k not in dest:       # a block absent from some groups stays NaN / "" there
+                    dest[k] = (np.full(total, np.nan) if v.dtype.kind == "f"
+                               else np.full(total, "", dtype=object) if v.dtype.kind in "OU"
+                               else np.zeros(total, dtype=v.dtype))
+                dest[k][offset:offset + v.size] = v
+
+    warnings: list[str] = []
+    bar = _progress(progress, total=len(slow_combos) * math.ceil(n_fast / chunk))
+    try:
+        for g, combo in enumerate(slow_combos):
+            fixed = {a.key: np.asarray(a.values[i]).item() for a, i in zip(slow, combo)}
+            sc_g = sc.with_values(fixed) if fixed else sc
+            setup = build(sc_g, unit_scaling)
+            if client is None:
+                for start in range(0, n_fast, chunk):
+                    sl = slice(start, min(start + chunk, n_fast))
+                    store(g * n_fast + start,
+                          evaluate(setup, {k: v[sl] for k, v in fast_flat.items()}, sl.stop - sl.start))
+                    bar.update(1)
+            else:
+                store(g * n_fast, _evaluate_dask(client, setup, fast_flat, n_fast, chunk))
+                bar.update(math.ceil(n_fast / chunk))
+    finally:
+        bar.close()
+        if client is not None:
+            cluster = client.cluster if not scheduler else None
+            client.close()
+            if cluster is not None:
+                cluster.close()
+    if "steady_state" in merged and "converged" in merged["steady_state"]:
+        bad = int(np.sum(merged["steady_state"]["converged"] == 0))
+        if bad:
+            warnings.append(f"{bad} operating point(s) did not converge or are outside the model "
+                            "(the reasons are in the warnings); see the 'converged' variable")
+    # reorder from (slow..., fast...) to the scenario's axis order
+    order = slow + fast
+    perm = [order.index(a) for a in axes]
+    shape = [a.values.size for a in order]
+    merged = {b: {k: np.transpose(v.reshape(shape), perm).reshape(-1) for k, v in vals.items()}
+              for b, vals in merged.items()}
+    ds = labelled_dataset(merged, [a.values.size for a in axes], axes)
+    add_attrs(ds, sc)
+    if not slow:
+        add_background_limit(ds, setup)
+    return Result(sc, ds, {}, tuple(warnings))
+
+
+def add_background_limit(ds: xr.Dataset, setup: Setup) -> None:
+    """Record the background-limit temperature for a detector looking at a warm background."""
+    sc = setup.scenario
+    if "detector" not in sc.data or "background" not in sc.data or setup.recombination is None:
+        return
+    bl = background_limit(setup)
+    ds.attrs["background_limit_temperature_K"] = bl.temperature_K if bl.found else float("nan")
+    ds.attrs["background_limit_note"] = bl.note
+    for name in ("background_limit_temperature_K", "background_limit_note"):
+        ds[name] = ((), ds.attrs[name], {"units": "K" if name.endswith("_K") else "1",
+                                          "block": "detector", "key": name})
+
+
+def _progress(progress, total):
+    from tqdm.auto import tqdm
+    disable = (not sys.stderr.isatty()) if progress is None else (not progress)
+    return tqdm(total=total, disable=disable, delay=1.0, unit="chunk", desc="optogen sweep")
+
+
+def _dask_client(workers, scheduler):
+    try:
+        from dask.distributed import Client, LocalCluster
+    except ImportError:  # pragma: no cover - depends on the installation
+        raise InputError("--workers/--scheduler", workers or scheduler,
+                         "needs dask and distributed: pip install 'optogen[dask]'") from None
+    if scheduler:
+        return Client(scheduler)
+    if isinstance(workers, bool) or not isinstance(workers, int) or not 1 <= workers <= MAX_WORKERS:
+        raise InputError("--workers", workers, f"an integer from 1 to {MAX_WORKERS}")
+    check = workers
+    cluster = LocalCluster(n_workers=check, threads_per_worker=1, processes=True, dashboard_address=None)
+    return Client(cluster)
+
+
+def _evaluate_dask(client, setup, fast_flat, n_fast, chunk):
+    """The same chunks as the in-process path, as an xarray.map_blocks over dask arrays.
+
+    The swept fast values form a Dataset chunked along "point" with the same
+    chunk size as the in-process loop, so every chunk sees the same inputs and
+    the answers are identical.
+    """
+    probe = evaluate(setup, {k: v[:1] for k, v in fast_flat.items()}, 1)
+    names = [(b, k) for b in probe for k in probe[b]]
+    inputs = xr.Dataset({f"in{i}": ("point", v) for i, v in enumerate(fast_flat.values())},
+                        coords={"point": np.arange(n_fast)}).chunk({"point": chunk})
+    template = xr.Dataset({f"v{j}": ("point", np.empty(n_fast, dtype=probe[b][k].dtype))
+                           for j, (b, k) in enumerate(names)},
+                          coords={"point": np.arange(n_fast)}).chunk({"point": chunk})
+    keys = list(fast_flat)
+
+    def block(ds_in: xr.Dataset) -> xr.Dataset:
+        n = ds_in.sizes["point"]
+        res = evaluate(setup, {k: ds_in[f"in{i}"].values for i, k in enumerate(keys)}, n)
+        return xr.Dataset({f"v{j}": ("point", res[b][k]) for j, (b, k) in enumerate(names)},
+                          coords={"point": ds_in["point"].values})
+
+    if not keys:   # a sweep of slow keys only: one point per group
+        return evaluate(setup, {}, n_fast)
+    out = xr.map_blocks(block, inputs, template=template).compute(scheduler=client)
+    merged: dict[str, dict[str, np.ndarray]] = {}
+    for j, (b, k) in enumerate(names):
+        merged.setdefault(b, {})[k] = out[f"v{j}"].values
+    return merged

@@ -18,11 +18,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from importlib.resources import files
 from pathlib import Path
 
 import numpy as np
 
+from ._data import data_dir
 from ._dispatch import normalise
 from .constants import c_m_s, h_J_s, k_B_J_K
 from . import schema as _schema
@@ -119,11 +119,8 @@ def names() -> list[str]:
 # ---------------------------------------------------------------------------
 
 def _spectra_dir():
-    """The bundled spectra: the installed package data, or spectra/ of a source tree."""
-    try:
-        return files("optogen.spectra")
-    except ModuleNotFoundError:     # imported from a checkout without installing
-        return Path(__file__).resolve().parent.parent / "spectra"
+    """The bundled spectra (`optogen._data.data_dir`)."""
+    return data_dir("spectra")
 
 
 def standard(name: str) -> Spectrum:

@@ -12,6 +12,7 @@ import pytest
 from scipy import constants as sc
 
 from optogen import materials as M
+from optogen.materials import optical as OPT
 from optogen.errors import InputError
 
 HC_EV_NM = sc.h * sc.c / sc.e * 1e9
@@ -204,10 +205,10 @@ def test_unknown_book():
 
 
 def test_page_cache_reads_once():
-    M._load_page.cache_clear()
+    OPT._load_page.cache_clear()
     M.optical_constants(M.get("Ge"), 1000.0)
     M.optical_constants(M.get("Ge"), [900.0, 1100.0], 250.0)
-    info = M._load_page.cache_info()
+    info = OPT._load_page.cache_info()
     assert info.misses == 1 and info.hits >= 1
 
 
@@ -324,13 +325,13 @@ def test_intermediate_page_from_its_neighbours():
     # documented miss of this rule is <= 8 % here for alpha >= 1 cm^-1 (_series_blend docstring),
     # far less than the rigid shift of one neighbour (the former rule), which misses by ~40 %.
     si = M.get("Si")
-    series = tuple(s for s in M._series_pages("main", "Si", "Franta") if not 250.0 < s[0] < 350.0)
+    series = tuple(s for s in OPT._series_pages("main", "Si", "Franta") if not 250.0 < s[0] < 350.0)
     assert [t for t, _ in series if 200 <= t <= 400] == [200.0, 250.0, 350.0, 400.0]
     wl = np.arange(400.0, 1151.0, 5.0)
     E = HC_EV_NM / wl
     T = np.full(wl.shape, 300.0)
     Eg = np.full(wl.shape, si.bandgap_eV(300.0))
-    _, alpha = M._series_blend(si, series, E, Eg, T, T)
+    _, alpha = OPT._series_blend(si, series, E, Eg, T, T)
     truth = _db_alpha_at("Franta-300K", wl)
     big = truth >= 1.0
     err_blend = np.max(np.abs(alpha[big] / truth[big] - 1))

@@ -179,13 +179,14 @@ def _two_passes(a_down, a_up, k, x, W, scratch):
 
 
 def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, front_R=0.0, rear_R=1.0,
-            light_path="lambertian", depth_cm=None, temperature_K=np.nan) -> Generation:
+            light_path="lambertian", depth_cm=None, temperature_K=np.nan, with_profile=True) -> Generation:
     """Generation from arrays (the core behind `generate`).
 
     wavelength_nm (L,) [nm]; photon_flux_cm2_s_nm (L,) incident [cm^-2 s^-1 nm^-1];
     alpha_cm1, n (..., L) [cm^-1], [-]; thickness_cm [cm]; front_R, rear_R broadcastable
     to (..., L) [-]; light_path: single | mirror | lambertian; depth_cm (X,) [cm] or None for
-    `depth_mesh_cm`; temperature_K (...) [K], only recorded.
+    `depth_mesh_cm`; temperature_K (...) [K], only recorded; with_profile: also compute G(x)
+    (False: depth_cm and profile_cm3_s are empty, for sweeps that need only the averages).
     """
     wl = np.asarray(wavelength_nm, float)
     phi = np.asarray(photon_flux_cm2_s_nm, float)
@@ -193,7 +194,9 @@ def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, fro
     W = float(thickness_cm)
     name = optics.light_path_name(light_path)
     p = optics.passes(alpha, W, n, front_R, rear_R, name)
-    if depth_cm is None:
+    if not with_profile:
+        x = np.empty(0)
+    elif depth_cm is None:
         x = depth_mesh_cm(W, p.c * float(np.max(alpha, initial=0.0)))
     else:
         x = np.asarray(depth_cm, float)
@@ -211,7 +214,7 @@ def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, fro
         wavelength_nm=wl, depth_cm=x,
         front_reflectance=np.broadcast_to(np.asarray(front_R, float), A.shape),
         absorptance=A, absorbed_photon_flux_cm2_s_nm=absorbed,
-        profile_cm3_s=_profile(x, w * phi, alpha, W, p),
+        profile_cm3_s=_profile(x, w * phi, alpha, W, p) if with_profile else np.empty(absorbed_total.shape + (0,)),
         average_cm3_s=absorbed_total / W,
         photocurrent_mA_cm2=q_C * absorbed_total * 1e3,
         absorbed_fraction=fraction)
@@ -219,7 +222,7 @@ def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, fro
 
 def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0, rear_reflectance=1.0,
              light_path="lambertian", depth_cm=None, coating=None, *, page=None, csv_path=None,
-             base_dir=".") -> Generation:
+             base_dir=".", with_profile=True) -> Generation:
     """Generation of `spectrum` in an absorber of `material`, broadcast over T_K.
 
     spectrum: light.Spectrum; material: materials.Material or a built-in name
@@ -230,6 +233,7 @@ def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0,
     as an alternative to a coating table in front_reflectance
     page, csv_path: optical-constant source passed to materials.optical_constants
     base_dir: directory that relative file paths refer to
+    with_profile: also compute G(x) (see `compute`)
     """
     from . import materials
     if isinstance(material, str):
@@ -250,7 +254,7 @@ def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0,
     oc = materials.optical_constants(material, wl, T[..., None], page=page, csv_path=csv_path)
     Rf = optics.front_reflectance(front_reflectance, wl, oc.n, oc.k, base_dir=base_dir)
     return compute(wl, flux, oc.alpha_cm1, oc.n, thickness_cm, Rf, rear_reflectance,
-                   light_path, depth_cm, temperature_K=T)
+                   light_path, depth_cm, temperature_K=T, with_profile=with_profile or depth_cm is not None)
 
 
 def absorbed_fraction_below_eV(wavelength_nm, absorbed_photon_flux_cm2_s_nm, rows, energy_eV):

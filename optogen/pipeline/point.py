@@ -26,7 +26,6 @@ from ..recombination import surface_j0_flux_cm2_s, surface_velocity_j0_cm_s
 from ..steady_state import (DEGENERATE_KT, DN_MAX_CM3, _NAN_WHEN_UNCONVERGED, implied_jv, lifetime_curve, solve,
                             state_at)
 from ..transport import ambipolar_diffusivity_cm2_s, diffusivity_cm2_s, missing_mobility_record, photoconductance_S
-from .result import flat_block
 from .setup import (LIGHT_SCALING_KEYS, Setup, check_doping_sum, check_irradiance, doping_of, equilibrium_options,
                     generation_of, mobilities, optical_csv)
 
@@ -34,6 +33,72 @@ from .setup import (LIGHT_SCALING_KEYS, Setup, check_doping_sum, check_irradianc
 #: largest fraction of the absorbed photons allowed below the splitting [-] (our choice:
 #: beyond it the linear absorption that gives G no longer describes the point)
 INVERSION_LIMIT = 0.01
+
+
+#: the generation block's keys (per point) [-]
+GENERATION_KEYS = ("average_cm3_s", "photocurrent_mA_cm2", "absorbed_fraction")
+
+
+@dataclasses.dataclass(frozen=True)
+class _Distinct:
+    """Distinct rows of some per-point columns: values (one 1-D array per column) and, for
+    each point, its row among them."""
+    values: tuple
+    rows: np.ndarray
+
+
+def _distinct(*columns) -> _Distinct:
+    """The distinct combinations of equal-length 1-D columns (e.g. T, N_D, N_A) [-]."""
+    stacked = np.stack([np.asarray(c, dtype=float).reshape(-1) for c in columns])
+    if stacked.shape[1] <= 1:
+        return _Distinct(tuple(stacked), np.zeros(stacked.shape[1], dtype=np.intp))
+    varies = np.flatnonzero(np.any(stacked != stacked[:, :1], axis=1))
+    if varies.size == 0:
+        return _Distinct(tuple(stacked[:, :1]), np.zeros(stacked.shape[1], dtype=np.intp))
+    if varies.size == 1:                   # one varying column (the common case): a 1-D unique
+        u, rows = np.unique(stacked[varies[0]], return_inverse=True)
+        uniq = np.repeat(stacked[:, :1], u.size, axis=1)
+        uniq[varies[0]] = u
+        return _Distinct(tuple(uniq), rows.reshape(-1))
+    uniq, rows = np.unique(stacked, axis=1, return_inverse=True)
+    return _Distinct(tuple(uniq), rows.reshape(-1))
+
+
+def _take(state, rows):
+    """The dataclass `state` (Equilibrium, SteadyState) at the points `rows`: every array field
+    with a leading axis is indexed, everything else (names, scalars) is kept [-]."""
+    changes = {}
+    for f in dataclasses.fields(state):
+        v = getattr(state, f.name)
+        if isinstance(v, np.ndarray) and v.ndim >= 1:
+            changes[f.name] = v[rows]
+    return dataclasses.replace(state, **changes)
+
+
+def _block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
+    """A block dict (nested one level: "tau_s.srh") as 1-D arrays of length n: numbers as float
+    (None -> NaN), strings as object arrays; no per-element Python work on numeric arrays."""
+    flat: dict[str, Any] = {}
+    for k, v in d.items():
+        if isinstance(v, Mapping):
+            flat.update({f"{k}.{k2}": v2 for k2, v2 in v.items()})
+        else:
+            flat[k] = v
+    res = {}
+    for k, v in flat.items():
+        a = np.asarray(v)
+        if a.dtype.kind == "O":       # scalars given as None, or strings
+            items = a.reshape(-1)
+            if any(isinstance(x, str) for x in items):
+                a = a.astype(object)
+            else:
+                a = np.array([np.nan if x is None else x for x in items], dtype=float).reshape(a.shape)
+        elif a.dtype.kind in "US":
+            a = a.astype(object)
+        else:
+            a = a.astype(float)
+        res[k] = np.broadcast_to(a, (n,)).copy() if a.ndim == 0 or a.size == 1 else a.reshape(-1)
+    return res
 
 
 def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
@@ -57,8 +122,11 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
     nd, na = ones * nd, ones * na
     check_doping_sum(nd, na, "absorber.donors_cm3" if "absorber.donors_cm3" in values else "absorber.acceptors_cm3")
     rec = setup.recombination
-    eq = equilibrium(setup.material, T, nd, na, **equilibrium_options(setup))
-    out: dict[str, dict[str, Any]] = {"equilibrium": flat_block(eq.to_dict(), n)}
+    # the dark state depends on (T, N_D, N_A) only: solved once per distinct combination
+    combos = _distinct(T, nd, na)
+    eq_u = equilibrium(setup.material, *combos.values, **equilibrium_options(setup))
+    eq = _take(eq_u, combos.rows)
+    out: dict[str, dict[str, Any]] = {"equilibrium": _block({k: getattr(eq, k) for k in eq._DICT_KEYS}, n)}
     extra: dict[str, Any] = {"equilibrium": eq}
     G = np.zeros(n)
     if setup.spectrum is not None:
@@ -68,18 +136,18 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
                 scale = ones * np.asarray(values[f"light.{k}"], dtype=float)
                 check_range(f"light.{k}", scale, 0.0, schema.KEYS[f"light.{k}"].high)
         check_irradiance(sc, setup.spectrum.irradiance_W_m2 * scale)
-        g, inv = generation_of(setup, setup.spectrum, T)
-        gd = flat_block(g.to_dict(), len(np.atleast_1d(g.average_cm3_s)))
-        gen = {k: np.asarray(v)[inv] * (scale if k in ("average_cm3_s", "photocurrent_mA_cm2") else 1.0)
-               for k, v in gd.items()}
+        g, inv = generation_of(setup, setup.spectrum, T, profile=details)
+        gen = {k: np.asarray(getattr(g, k), dtype=float).reshape(-1)[inv] for k in GENERATION_KEYS}
+        gen["average_cm3_s"] = gen["average_cm3_s"] * scale
+        gen["photocurrent_mA_cm2"] = gen["photocurrent_mA_cm2"] * scale
         G = G + gen["average_cm3_s"]
         out["light"] = {"irradiance_W_m2": setup.spectrum.irradiance_W_m2 * scale,
                         "photon_flux_cm2_s": setup.spectrum.photon_flux_cm2_s * scale}
         out["generation"] = gen
         extra["generation"] = g
     if setup.background is not None:
-        gb, inv = generation_of(setup, setup.background, T)
-        bg = np.asarray(gb.average_cm3_s)[inv]
+        gb, inv_b = generation_of(setup, setup.background, T)
+        bg = np.asarray(gb.average_cm3_s, dtype=float).reshape(-1)[inv_b]
         G = G + bg
         out.setdefault("generation", {"average_cm3_s": np.zeros(n), "photocurrent_mA_cm2": np.zeros(n),
                                       "absorbed_fraction": np.full(n, np.nan)})
@@ -109,7 +177,7 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
                              "energy below the quasi-Fermi-level splitting, where the absorber would amplify or "
                              "be transparent rather than absorb (population inversion, or band filling in "
                              f"degenerate material; the absorption model has neither): {why}")
-        out["steady_state"] = flat_block(ss.to_dict(), n)
+        out["steady_state"] = _block(ss.to_dict(), n)
         extra["steady_state"] = ss
         out["steady_state"]["converged"] = np.asarray(ss.converged) * ones
         out["steady_state"]["degenerate"] = np.asarray(ss.degenerate, dtype=bool) * np.ones(n, bool)
@@ -136,7 +204,7 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
             prof["steady_state"]["photoconductance_S"] = out["steady_state"]["photoconductance_S"]
             out["steady_state"] = prof["steady_state"]
         if "detector" in sc.data:
-            out["detector"] = _detector_block(setup, eq, ss, T, nd, na, out, trial)
+            out["detector"] = _detector_block(setup, eq, ss, T, nd, na, out, trial, (eq_u, combos.rows))
     if details:
         out["_details"] = extra
     return out
@@ -324,14 +392,20 @@ def _photoconductance(setup, eq, ss, T, nd, na):
                               *mobilities(setup, T, nd, na, n, p), setup.thickness_cm)
 
 
-def _detector_block(setup, eq, ss, T, nd, na, out, trial=False) -> dict[str, np.ndarray]:
-    """The `detector` JSON block: signal, background and dark currents, noise terms, D*, D*_BLIP."""
+def _detector_block(setup, eq, ss, T, nd, na, out, trial=False, dark_states=None) -> dict[str, np.ndarray]:
+    """The `detector` JSON block: signal, background and dark currents, noise terms, D*, D*_BLIP.
+
+    dark_states: (equilibrium over the distinct (T, N_D, N_A), row of each point) so that the
+    dark steady state is solved once per distinct dark state; default: per point.
+    """
     d = det.detector_from_table(setup.scenario.section("detector"))
     rec = setup.recombination
     n = T.size
     n0, p0 = np.ravel(eq.n0_cm3), np.ravel(eq.p0_cm3)
     ln_n0, ln_p0 = np.ravel(eq.ln_n0_cm3), np.ravel(eq.ln_p0_cm3)
-    dark = solve(setup.material, eq, rec, np.zeros(n), setup.thickness_cm, with_ff=False)
+    eq_u, rows = dark_states if dark_states is not None else (eq, np.arange(n))
+    dark = _take(solve(setup.material, eq_u, rec, np.zeros(np.size(eq_u.temperature_K)), setup.thickness_cm,
+                       with_ff=False), rows)
     tau_dark = np.ravel(dark.tau_eff_s)
     gen = out.get("generation", {})
     g_opt = gen.get("average_cm3_s", np.zeros(n))

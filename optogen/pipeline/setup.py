@@ -8,7 +8,7 @@ that owns it.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any, Mapping
 
 import numpy as np
@@ -36,7 +36,12 @@ RESISTIVITY_REFERENCE_K = 300.0
 
 @dataclass(frozen=True)
 class Setup:
-    """Everything built once from a scenario (fixed slow keys)."""
+    """Everything built once from a scenario (fixed slow keys).
+
+    tables: quantities that vary only with temperature, computed once for every temperature
+        of a group of points and reused by each chunk (`tabulate_generation`); filled in
+        place, not part of the identity of the set-up
+    """
 
     scenario: Scenario
     material: Any
@@ -45,6 +50,7 @@ class Setup:
     background: Any | None
     recombination: Any | None
     optics: dict
+    tables: dict = field(default_factory=dict, compare=False, repr=False)
 
 
 def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
@@ -202,17 +208,45 @@ def equilibrium_options(setup: Setup) -> dict:
                 incomplete_ionisation=ab.get("incomplete_ionisation", True))
 
 
-def generation_of(setup: Setup, spectrum, T, depth_cm=None):
-    """Generation results over temperature T (1-D array) for one spectrum."""
+def generation_of(setup: Setup, spectrum, T, depth_cm=None, profile: bool = False):
+    """Generation of `spectrum` over temperatures T (1-D array) [per `generation.Generation`].
+
+    Returns (g, rows): g over the distinct temperatures, rows[i] the row of g for T[i].
+    Computed once per distinct temperature: a table made by `tabulate_generation` for the
+    group is reused when it holds every T (no depth mesh, no profile asked).
+    profile: also compute G(x) on the automatic depth mesh (single points, plots).
+    """
+    T = np.asarray(T, dtype=float)
+    Tu, inv = np.unique(T, return_inverse=True)
+    table = setup.tables.get(_table_key(setup, spectrum)) if depth_cm is None and not profile else None
+    if table is not None:
+        known, g = table
+        j = np.minimum(np.searchsorted(known, Tu), known.size - 1)
+        if np.array_equal(known[j], Tu):
+            return g, j[inv]
     o = setup.optics
-    Tu, inv = np.unique(np.asarray(T, dtype=float), return_inverse=True)
     kw = dict(front_reflectance=o.get("front_reflectance", 0.0), rear_reflectance=o.get("rear_reflectance", 1.0),
               light_path=o.get("light_path", "lambertian"), base_dir=setup.scenario.base_dir,
               page=setup.scenario.get("absorber.optical_page"), csv_path=optical_csv(setup.scenario))
     if "coating" in o:
         kw["coating"] = o["coating"]
-    g = generate(spectrum, setup.material, setup.thickness_cm, T_K=Tu, depth_cm=depth_cm, **kw)
+    g = generate(spectrum, setup.material, setup.thickness_cm, T_K=Tu, depth_cm=depth_cm,
+                 with_profile=profile or depth_cm is not None, **kw)
     return g, inv
+
+
+def tabulate_generation(setup: Setup, T) -> None:
+    """Compute the generation of the light and the background once for every temperature in T
+    (the temperatures of a whole group of points) and keep it in `setup.tables` [-]."""
+    Tu = np.unique(np.asarray(T, dtype=float))
+    for spectrum in (setup.spectrum, setup.background):
+        if spectrum is not None:
+            g, _ = generation_of(setup, spectrum, Tu)
+            setup.tables[_table_key(setup, spectrum)] = (Tu, g)
+
+
+def _table_key(setup: Setup, spectrum) -> str | None:
+    return "light" if spectrum is setup.spectrum else "background" if spectrum is setup.background else None
 
 
 def optical_csv(sc: Scenario):

@@ -21,7 +21,7 @@ from ..errors import InputError
 from ..scenario import Scenario
 from .point import background_limit, evaluate, point_details
 from .result import Result, add_attrs, labelled_dataset
-from .setup import FAST_KEYS, Setup, build, swept_light_scaling
+from .setup import FAST_KEYS, Setup, build, swept_light_scaling, tabulate_generation
 
 
 DEFAULT_CHUNK = 100_000
@@ -100,6 +100,11 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
             fixed = {a.key: np.asarray(a.values[i]).item() for a, i in zip(slow, combo)}
             sc_g = sc.with_values(fixed) if fixed else sc
             setup = build(sc_g, unit_scaling)
+            temps = [a.values for a in fast if a.key == "absorber.temperature_K"]
+            if temps and temps[0].size > 1:          # generation once per temperature of the group
+                with np.errstate(invalid="ignore"):
+                    ok = (temps[0] >= schema.T_MIN_K) & (temps[0] <= schema.T_MAX_K)
+                tabulate_generation(setup, np.asarray(temps[0], dtype=float)[ok])
             if client is None:
                 for start in range(0, n_fast, chunk):
                     sl = slice(start, min(start + chunk, n_fast))

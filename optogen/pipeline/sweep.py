@@ -74,8 +74,6 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     unit_scaling = swept_light_scaling(sc)
     fast = [a for a in axes if a.key in FAST_KEYS]
     slow = [a for a in axes if a.key not in FAST_KEYS]
-    fast_grid = np.meshgrid(*[a.values for a in fast], indexing="ij") if fast else []
-    fast_flat = {a.key: g.reshape(-1) for a, g in zip(fast, fast_grid)}
     n_fast = int(np.prod([a.values.size for a in fast])) if fast else 1
     slow_combos = list(itertools.product(*[range(a.values.size) for a in slow]))
 
@@ -98,22 +96,15 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     try:
         for g, combo in enumerate(slow_combos):
             fixed = {a.key: np.asarray(a.values[i]).item() for a, i in zip(slow, combo)}
-            sc_g = sc.with_values(fixed) if fixed else sc
-            setup = build(sc_g, unit_scaling)
+            setup = build(sc.with_values(fixed) if fixed else sc, unit_scaling)
             temps = [a.values for a in fast if a.key == "absorber.temperature_K"]
             if temps and temps[0].size > 1:          # generation once per temperature of the group
                 with np.errstate(invalid="ignore"):
                     ok = (temps[0] >= schema.T_MIN_K) & (temps[0] <= schema.T_MAX_K)
                 tabulate_generation(setup, np.asarray(temps[0], dtype=float)[ok])
-            if client is None:
-                for start in range(0, n_fast, chunk):
-                    sl = slice(start, min(start + chunk, n_fast))
-                    store(g * n_fast + start,
-                          evaluate(setup, {k: v[sl] for k, v in fast_flat.items()}, sl.stop - sl.start))
-                    bar.update(1)
-            else:
-                store(g * n_fast, _evaluate_dask(client, setup, fast_flat, n_fast, chunk))
-                bar.update(math.ceil(n_fast / chunk))
+            for start, part in _group_chunks(setup, fast, n_fast, chunk, client):
+                store(g * n_fast + start, part)
+                bar.update(1)
     finally:
         bar.close()
         if client is not None:
@@ -173,32 +164,51 @@ def _dask_client(workers, scheduler):
     return Client(cluster)
 
 
-def _evaluate_dask(client, setup, fast_flat, n_fast, chunk):
-    """The same chunks as the in-process path, as an xarray.map_blocks over dask arrays.
+def evaluate_chunk(setup: Setup, fast, start: int, stop: int) -> dict[str, dict[str, np.ndarray]]:
+    """Every output block for the points start..stop-1 (flat C order) of the fast-key grid.
 
-    The swept fast values form a Dataset chunked along "point" with the same
-    chunk size as the in-process loop, so every chunk sees the same inputs and
-    the answers are identical.
+    fast: the swept fast keys as (key, values) pairs in grid order [units of each key]; the
+    values of each point come from its flat index, so a chunk needs no copy of the grid.
     """
-    probe = evaluate(setup, {k: v[:1] for k, v in fast_flat.items()}, 1)
-    names = [(b, k) for b in probe for k in probe[b]]
-    inputs = xr.Dataset({f"in{i}": ("point", v) for i, v in enumerate(fast_flat.values())},
-                        coords={"point": np.arange(n_fast)}).chunk({"point": chunk})
-    template = xr.Dataset({f"v{j}": ("point", np.empty(n_fast, dtype=probe[b][k].dtype))
-                           for j, (b, k) in enumerate(names)},
-                          coords={"point": np.arange(n_fast)}).chunk({"point": chunk})
-    keys = list(fast_flat)
+    if not fast:
+        return evaluate(setup, {}, stop - start)
+    index = np.unravel_index(np.arange(start, stop), [values.size for _, values in fast])
+    return evaluate(setup, {key: values[i] for (key, values), i in zip(fast, index)}, stop - start)
 
-    def block(ds_in: xr.Dataset) -> xr.Dataset:
-        n = ds_in.sizes["point"]
-        res = evaluate(setup, {k: ds_in[f"in{i}"].values for i, k in enumerate(keys)}, n)
-        return xr.Dataset({f"v{j}": ("point", res[b][k]) for j, (b, k) in enumerate(names)},
-                          coords={"point": ds_in["point"].values})
 
-    if not keys:   # a sweep of slow keys only: one point per group
-        return evaluate(setup, {}, n_fast)
-    out = xr.map_blocks(block, inputs, template=template).compute(scheduler=client)
-    merged: dict[str, dict[str, np.ndarray]] = {}
-    for j, (b, k) in enumerate(names):
-        merged.setdefault(b, {})[k] = out[f"v{j}"].values
-    return merged
+#: chunks in flight per dask worker (bounds the results waiting in memory) [-]
+IN_FLIGHT_PER_WORKER = 2
+
+
+def _group_chunks(setup: Setup, fast_axes, n_fast: int, chunk: int, client):
+    """(offset, blocks) for every chunk of one group of points, in process or on dask.
+
+    On dask the set-up is sent to every worker once and at most IN_FLIGHT_PER_WORKER chunks
+    per worker are pending at a time, so the memory held for results is bounded by a few
+    chunks; the chunks (and so the answers) are the same as in process.
+    """
+    fast = [(a.key, np.asarray(a.values)) for a in fast_axes]
+    starts = range(0, n_fast, chunk)
+    if client is None:
+        for start in starts:
+            yield start, evaluate_chunk(setup, fast, start, min(start + chunk, n_fast))
+        return
+    from dask.distributed import as_completed
+    remote = client.scatter(setup, broadcast=True)
+    limit = IN_FLIGHT_PER_WORKER * max(1, len(client.scheduler_info().get("workers", {})))
+    pending = iter(starts)
+    window = as_completed()
+    futures = {}
+    for start in itertools.islice(pending, limit):
+        f = client.submit(evaluate_chunk, remote, fast, start, min(start + chunk, n_fast), pure=False)
+        futures[f.key] = start
+        window.add(f)
+    for f in window:
+        start = futures.pop(f.key)
+        part = f.result()
+        nxt = next(pending, None)
+        if nxt is not None:
+            nf = client.submit(evaluate_chunk, remote, fast, nxt, min(nxt + chunk, n_fast), pure=False)
+            futures[nf.key] = nxt
+            window.add(nf)
+        yield start, part

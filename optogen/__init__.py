@@ -12,12 +12,43 @@ from .errors import InputError
 from .scenario import Scenario, load_scenario
 
 
-def run(scenario, **kwargs):
-    """Run a scenario (a Scenario, a path or TOML text); see `optogen.pipeline.run`."""
+def run(scenario, *, spectrum=None, **kwargs):
+    """Run a scenario (a Scenario, a path or TOML text); see `optogen.pipeline.run`.
+
+    spectrum: a measured spectrum to use as the [light] source instead of the scenario's:
+        (wavelength_nm, irradiance_W_m2_nm) arrays [nm], [W m^-2 nm^-1], a pandas Series
+        (index: wavelength) or DataFrame (columns named as in a spectrum file), or a
+        `optogen.light.Spectrum`.  It runs as ``light.source = "file"``: the scenario's
+        scaling key (suns, irradiance_W_m2, ...) rescales it, without one its absolute values
+        are used.  The Dataset attribute ``spectrum_note`` says so.
+    """
     from .pipeline import run as _run     # the pipeline imports the whole core: only when a run is asked for
     if not isinstance(scenario, Scenario):
         scenario = load_scenario(scenario)
-    return _run(scenario, **kwargs)
+    if spectrum is None:
+        return _run(scenario, **kwargs)
+    import dataclasses
+    import tempfile
+    from pathlib import Path
+    from . import light, schema
+    from .scenario import validate
+    spec = light.spectrum_from_data(spectrum)
+    with tempfile.TemporaryDirectory(prefix="optogen-spectrum-") as tmp:
+        path = Path(tmp) / "spectrum.csv"
+        lines = ["wavelength (nm),irradiance (W m^-2 nm^-1)"]
+        lines += [f"{w!r},{e!r}" for w, e in zip(spec.wavelength_nm.tolist(), spec.irradiance_W_m2_nm.tolist())]
+        path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+        table = {k: v for k, v in dict(scenario.data.get("light") or {}).items()
+                 if k in (*schema.LIGHT_SCALINGS, *schema.LIGHT_SPOT_KEYS)}
+        table.update(source="file", path=str(path))
+        data = dict(scenario.data)
+        data["light"] = table
+        validate(data)
+        res = _run(dataclasses.replace(scenario, data=data), **kwargs)
+    res.dataset.attrs["spectrum_note"] = (f"light source: a spectrum passed to optogen.run(spectrum=...), "
+                                          f"{spec.wavelength_nm.size} points, {spec.wavelength_nm[0]:g} to "
+                                          f"{spec.wavelength_nm[-1]:g} nm (light.path named a temporary copy)")
+    return res
 
 
 __all__ = ["InputError", "Scenario", "load_scenario", "run", "__version__"]

@@ -1,4 +1,4 @@
-"""The `optogen` command: run, check, materials, spectra, schema.
+"""The `optogen` command: run, check, materials, spectra, demos, schema.
 
 The error boundary: bad input (`InputError`, raised where the input is read or
 checked, with the field named) prints one line "optogen: error: ..." and exits
@@ -40,7 +40,8 @@ def _parser() -> argparse.ArgumentParser:
     sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
     r = sub.add_parser("run", help="run a scenario file and report the dark and illuminated states")
-    r.add_argument("scenario", help="scenario file (TOML)")
+    r.add_argument("scenario", nargs="?", help="scenario file (TOML)")
+    r.add_argument("--demo", metavar="NAME", help="run a bundled demo scenario instead of a file (optogen demos)")
     r.add_argument("--json", action="store_true", help="print the result as JSON")
     r.add_argument("--out", metavar="DIR", help="write JSON/NetCDF/CSV/PNG files into DIR")
     r.add_argument("--set", metavar="KEY=VALUE", action="append", default=[],
@@ -64,6 +65,7 @@ def _parser() -> argparse.ArgumentParser:
                    help="Cd fraction x for HgCdTe")
 
     sub.add_parser("spectra", help="list the light sources and standard spectra")
+    sub.add_parser("demos", help="list the bundled demo scenarios (run one with: optogen run --demo NAME)")
 
     s = sub.add_parser("schema", help="print the scenario keys (or, with --json, a JSON Schema for editors)")
     s.add_argument("--json", action="store_true", help="print the JSON Schema of a scenario file")
@@ -97,7 +99,7 @@ def main(argv=None) -> int:
     except SystemExit as exc:          # usage errors (one line, status 2), --help and --version (0)
         return int(exc.code or 0)
     try:
-        return _dispatch(args)
+        return _dispatch(args, argv)
     except BrokenPipeError:            # output piped into `head` and closed: not an error
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
         return 0
@@ -116,15 +118,25 @@ def main(argv=None) -> int:
         return EXIT_INTERNAL
 
 
-def _dispatch(args) -> int:
+def _dispatch(args, argv=None) -> int:
     if args.command == "materials":
         return _materials(args)
     if args.command == "spectra":
         return _spectra()
     if args.command == "schema":
         return _schema(args)
+    if args.command == "demos":
+        return _demos()
     from .scenario import MAX_POINTS_WITHOUT_CONFIRMATION, load_scenario
-    sc = load_scenario(Path(args.scenario), _overrides(args.set))
+    demo = getattr(args, "demo", None)
+    if demo is not None and args.scenario is not None:
+        raise InputError("--demo", demo, "either a scenario file or --demo NAME, not both")
+    if demo is None and args.scenario is None:
+        raise InputError("scenario", None, "a scenario file, or --demo NAME (optogen demos lists them)")
+    sc = (_demo_scenario(demo, _overrides(args.set)) if demo is not None
+          else load_scenario(Path(args.scenario), _overrides(args.set)))
+    if demo is not None:
+        args.scenario = f"demo {sc.path}"
     if args.command == "check":
         from .pipeline import check
         check(sc)
@@ -144,6 +156,9 @@ def _dispatch(args) -> int:
                   workers=args.workers, scheduler=args.scheduler)
     for w in caught:
         print(f"optogen: warning: {' '.join(str(w.message).split())}", file=sys.stderr)
+    from .pipeline.result import command_line
+    res.dataset.attrs["history"] = (f"{res.dataset.attrs.get('created', '')} "
+                                    f"{command_line() if argv is None else 'optogen ' + _join(argv)}").strip()
     written = report.write_all(res, Path(args.out)) if args.out else []
     if args.json:
         print(json.dumps(res.to_dict(), indent=2, allow_nan=False))
@@ -182,6 +197,40 @@ def _schema(args) -> int:
     for path, key in schema.KEYS.items():
         default = "" if key.default is None else f" (default {key.default})"
         print(f"{path:<48} {key.allowed()}{default}{'; sweep: ' + key.sweep if key.sweep else ''}")
+    return 0
+
+
+def _join(argv) -> str:
+    import shlex
+    return shlex.join(map(str, argv))
+
+
+def _demo_files() -> dict:
+    """Bundled demo scenarios: name (file stem) -> resource (a Traversable or Path)."""
+    from ._data import data_dir
+    return {f.name[:-5]: f for f in sorted(data_dir("scenarios").iterdir(), key=lambda f: f.name)
+            if f.name.endswith(".toml")}
+
+
+def _demo_scenario(name: str, overrides):
+    from importlib.resources import as_file
+    from .errors import did_you_mean
+    from .scenario import load_scenario
+    files = _demo_files()
+    key = str(name).removesuffix(".toml")
+    if key not in files:
+        raise InputError("--demo", name, "one of " + ", ".join(files), did_you_mean(key, list(files)))
+    with as_file(files[key]) as path:
+        return load_scenario(Path(path), overrides)
+
+
+def _demos() -> int:
+    import tomllib
+    files = _demo_files()
+    w = max(map(len, files), default=0)
+    for name, f in files.items():
+        title = tomllib.loads(f.read_text(encoding="utf-8")).get("title", "")
+        print(f"{name:<{w}}  {title}")
     return 0
 
 

@@ -17,14 +17,15 @@ irradiance, the same for every spectrum: ``scale(s, suns=x)`` rescales the shape
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
 from ._data import data_dir
-from ._dispatch import normalise
-from .constants import c_m_s, h_J_s, k_B_J_K
+from .registry import normalise
+from .constants import c_m_s, h_J_s, hc_eV_nm, k_B_J_K
 from . import schema as _schema
 from .errors import InputError, check_range, did_you_mean
 
@@ -201,18 +202,313 @@ def read_columns(path, value_columns, field="light.path"):
     return data[:, 0], data[:, 1], column
 
 
-def from_file(path) -> Spectrum:
-    """A measured spectrum from a CSV file.
+def from_file(path, wavelength_column=None, irradiance_column=None, wavelength_unit=None, irradiance_unit=None,
+              field: str = "light.path") -> Spectrum:
+    """A measured spectrum from a delimited text file (`read_spectrum`); values taken as absolute.
 
-    Columns: ``wavelength_nm`` and either ``irradiance_W_m2_nm`` [W m^-2 nm^-1] or
-    ``photon_flux_cm2_s_nm`` [cm^-2 s^-1 nm^-1], told apart by the header; '#'
-    comment lines are allowed.  The values are taken as absolute.
-    path: the CSV file [-]
+    path: the file [-]; wavelength_column, irradiance_column: the columns to use, a header
+    name or a 1-based number (default: the first wavelength/energy column and the only
+    irradiance/photon-flux column) [-]; wavelength_unit: "nm", "um" or "eV" (default from
+    the header) [-]; irradiance_unit: e.g. "W m^-2 nm^-1", "W m^-2 um^-1", "W m^-2 eV^-1",
+    "cm^-2 s^-1 nm^-1" (default from the header) [-]
     """
-    wl, values, column = read_columns(path, ("irradiance_W_m2_nm", "photon_flux_cm2_s_nm"))
-    if column == "photon_flux_cm2_s_nm":
-        values = irradiance_from_photon_flux(wl, values)
-    return Spectrum(wl, values, Path(str(path)).name)
+    wl, E = read_spectrum(path, wavelength_column, irradiance_column, wavelength_unit, irradiance_unit, field)
+    return Spectrum(wl, E, Path(str(path)).name)
+
+
+# ---------------------------------------------------------------------------
+# Measured spectra: delimiter, header aliases, units in the header, column choice
+# ---------------------------------------------------------------------------
+
+#: header names (lower case, letters and digits only) of the spectral axis and of the values
+_AXIS_ALIASES = {"wavelength": "length", "wavelengthnm": "length", "wavelengthum": "length", "lambda": "length",
+                 "lambdanm": "length", "lambdaum": "length", "wl": "length", "wave": "length", "λ": "length",
+                 "energy": "energy", "photonenergy": "energy", "energyev": "energy", "photonenergyev": "energy",
+                 "e": "energy"}
+_VALUE_ALIASES = {"irradiance": "power", "spectralirradiance": "power", "irradiancewm2nm": "power",
+                  "irradiancewm2um": "power", "irradiancewm2ev": "power", "intensity": "power",
+                  "photonflux": "photons", "spectralphotonflux": "photons", "flux": "photons",
+                  "photonfluxcm2snm": "photons", "photonfluxcm2sev": "photons"}
+#: unit suffixes written into a header name (``irradiance_W_m2_nm``, ``lambda_nm``)
+_NAME_UNITS = {"W_m2_nm": "W m^-2 nm^-1", "W_m2_um": "W m^-2 um^-1", "W_m2_eV": "W m^-2 eV^-1",
+               "cm2_s_nm": "cm^-2 s^-1 nm^-1", "cm2_s_eV": "cm^-2 s^-1 eV^-1", "nm": "nm", "um": "um", "eV": "eV"}
+#: unit symbols the reader knows: symbol -> (dimension, factor to nm / W / cm / s / eV)
+_UNIT_SYMBOLS = {"nm": ("L", 1.0), "um": ("L", 1e3), "µm": ("L", 1e3), "μm": ("L", 1e3), "micron": ("L", 1e3),
+                 "microns": ("L", 1e3), "mm": ("L", 1e6), "cm": ("L", 1e7), "m": ("L", 1e9), "eV": ("E", 1.0),
+                 "meV": ("E", 1e-3), "W": ("P", 1.0), "mW": ("P", 1e-3), "uW": ("P", 1e-6), "µW": ("P", 1e-6),
+                 "s": ("T", 1.0)}
+ALLOWED_SPECTRUM_UNITS = ("wavelength in nm, um or eV; spectral irradiance per wavelength or energy "
+                          "(W m^-2 nm^-1, W m^-2 um^-1, mW cm^-2 nm^-1, W m^-2 eV^-1, ...) or spectral photon "
+                          "flux (cm^-2 s^-1 nm^-1, m^-2 s^-1 nm^-1, cm^-2 s^-1 eV^-1, ...)")
+
+
+def _parse_unit(text: str):
+    """A unit string -> {dimension: exponent} and a factor, or None.
+
+    Accepts "W m^-2 nm^-1", "W/m2/nm", "W/(m^2 nm)", "W m-2 um-1", "W·m⁻²·nm⁻¹"; dimensions L
+    (length, factor to nm), E (photon energy, eV), P (power, W), T (time, s); "photons" and
+    "1" are dimensionless.
+    """
+    t = str(text).strip().translate(str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁻", "0123456789-")).replace("·", " ").replace("*", " ")
+    t = t.replace("**", "^")
+    if not t:
+        return None
+    dims: dict[str, int] = {}
+    factor = 1.0
+    sign = 1
+    for part in re.split(r"(/)", t):
+        if part == "/":
+            sign = -1
+            continue
+        group = part.strip().strip("()")
+        for tok in group.replace("(", " ").replace(")", " ").split():
+            m = re.fullmatch(r"([A-Za-zµμ]+)\^?(-?\d+)?", tok)
+            if not m:
+                return None
+            sym, exp = m.group(1), int(m.group(2) or 1)
+            if sym.lower() in ("photons", "photon", "ph", "quanta"):
+                continue
+            if sym not in _UNIT_SYMBOLS:
+                return None
+            dim, f = _UNIT_SYMBOLS[sym]
+            e = sign * exp
+            dims[dim] = dims.get(dim, 0) + e
+            factor *= f ** e
+    dims = {d: e for d, e in dims.items() if e}
+    return dims, factor
+
+
+def _split_header_cell(cell: str):
+    """A header cell -> (base name in lower-case letters and digits, unit text or None)."""
+    m = re.fullmatch(r"\s*(.*?)\s*[\[(]\s*([^\])]*?)\s*[\])]\s*", cell)
+    if m:
+        name, unit = m.group(1), m.group(2)
+    else:
+        name, unit = cell.strip(), None
+        for suffix in sorted(_NAME_UNITS, key=len, reverse=True):
+            if name.lower().endswith("_" + suffix.lower()):
+                unit = _NAME_UNITS[suffix]
+                break
+    base = "".join(ch for ch in name.lower() if ch.isalnum() or ch == "λ")
+    return base, unit
+
+
+def _sniff(line: str):
+    """The delimiter of a header or data line: tab, semicolon, comma, else runs of white space (None)."""
+    for d in ("\t", ";", ","):
+        if d in line:
+            return d
+    return None
+
+
+def _cells(line: str, delim):
+    if delim is None:       # white space, keeping "name (unit)" / "name [unit]" together
+        return re.findall(r"[^\s\[(]+(?:\s*[\[(][^\])]*[\])])?|[\[(][^\])]*[\])]", line)
+    return [c.strip() for c in line.split(delim)]
+
+
+def read_spectrum(path, wavelength_column=None, irradiance_column=None, wavelength_unit=None, irradiance_unit=None,
+                  field: str = "light.path"):
+    """Read a measured spectrum: (wavelength [nm], spectral irradiance [W m^-2 nm^-1]), rising in wavelength.
+
+    The file: text (UTF-8), '#' comment lines and blank lines skipped; columns separated by
+    commas, tabs, semicolons or white space (sniffed from the header; with tabs or
+    semicolons a decimal comma is read as a point); a header line naming the columns, with
+    the unit in brackets or parentheses ("wavelength (nm)", "Wavelength [um]", "energy [eV]",
+    "irradiance [W m^-2 um^-1]") or as a suffix ("lambda_nm", "irradiance_W_m2_nm").  Extra
+    columns are ignored.  The spectral axis may be a wavelength in nm / um or a photon
+    energy in eV (E = hc / lambda); values per energy interval are converted with the
+    Jacobian |dE/dlambda| = hc / lambda^2, a photon flux with E = Phi hc / lambda.
+    Without a header, `wavelength_unit` and `irradiance_unit` must be given (columns 1, 2).
+
+    path: the file [-]; wavelength_column, irradiance_column: a header name or a 1-based
+    column number [-]; wavelength_unit, irradiance_unit: override the header's units [-];
+    field: the scenario field named in errors [-].
+    Returns wavelength_nm [nm] (strictly rising) and irradiance_W_m2_nm [W m^-2 nm^-1].
+    Errors (InputError) name the file, the line and column, and what is allowed.
+    """
+    name = str(path)
+    try:
+        raw = Path(path).read_bytes() if isinstance(path, (str, Path)) else path.read_bytes()
+    except OSError as err:
+        raise InputError(field, name, "an existing, readable spectrum file", str(err)) from None
+    try:
+        text = raw.decode("utf-8-sig")
+    except UnicodeDecodeError as err:
+        raise InputError(field, name, "a text file in UTF-8", f"byte {err.start}: {err.reason}") from None
+
+    def fail(line_no, problem, allowed=None):
+        raise InputError(field, name, f"line {line_no}: {problem}" + (f"; allowed: {allowed}" if allowed else ""))
+
+    lines = [(i, ln.strip()) for i, ln in enumerate(text.splitlines(), start=1)]
+    lines = [(i, ln) for i, ln in lines if ln and not ln.startswith("#")]
+    if not lines:
+        fail(1, "no header or data found")
+    head_no, head = lines[0]
+    delim = _sniff(head)
+    cells = _cells(head, delim)
+
+    def number(cell):
+        c = cell.strip()
+        if delim in ("\t", ";") and "," in c and "." not in c:
+            c = c.replace(",", ".")                  # decimal comma
+        return float(c)
+
+    try:
+        [number(c) for c in cells]
+        has_header = False
+    except ValueError:
+        has_header = True
+    if has_header:
+        parsed = [_split_header_cell(c) for c in cells]
+        data = lines[1:]
+    else:
+        if wavelength_unit is None or irradiance_unit is None:
+            fail(head_no, "no header line: name the columns, e.g. 'wavelength (nm),irradiance (W m^-2 nm^-1)', "
+                          "or give light.wavelength_unit and light.irradiance_unit")
+        parsed = [(f"column{k + 1}", None) for k in range(len(cells))]
+        data = lines
+
+    def pick(choice, aliases, what, key):
+        if choice is not None:
+            if isinstance(choice, int) and not isinstance(choice, bool) or str(choice).isdigit():
+                k = int(choice) - 1
+                if not 0 <= k < len(parsed):
+                    raise InputError(f"light.{key}", choice, f"a column number 1..{len(parsed)} of {name}")
+                return k
+            want = str(choice).strip().lower()
+            for k, (c, (base, _)) in enumerate(zip(cells, parsed)):
+                if c.lower() == want or base == "".join(ch for ch in want if ch.isalnum()):
+                    return k
+            raise InputError(f"light.{key}", choice, f"a column of {name}: " + ", ".join(repr(c) for c in cells))
+        found = [k for k, (base, _) in enumerate(parsed) if base in aliases]
+        if not has_header:
+            return 0 if what == "axis" else 1
+        if not found:
+            fail(head_no, f"no {'wavelength or energy' if what == 'axis' else 'irradiance or photon flux'} column "
+                          f"in the header {head!r}",
+                 "headers such as 'wavelength (nm)', 'Wavelength [um]', 'lambda_nm', 'energy [eV]', "
+                 "'irradiance [W m^-2 nm^-1]', 'photon_flux_cm2_s_nm', or choose one with light."
+                 + key)
+        if what == "value" and len(found) > 1:
+            fail(head_no, "several value columns: " + ", ".join(repr(cells[k]) for k in found),
+                 f"one, chosen with light.{key}")
+        return found[0]
+
+    ia = pick(wavelength_column, _AXIS_ALIASES, "axis", "wavelength_column")
+    iv = pick(irradiance_column, _VALUE_ALIASES, "value", "irradiance_column")
+    if ia == iv:
+        raise InputError("light.irradiance_column", irradiance_column, "a column other than the wavelength column")
+    axis_unit = wavelength_unit or parsed[ia][1]
+    value_unit = irradiance_unit or parsed[iv][1]
+    if axis_unit is None:
+        if parsed[ia][0] in ("energy", "photonenergy", "e"):
+            axis_unit = "eV"
+        else:
+            fail(head_no, f"column {ia + 1} {cells[ia]!r} gives no unit", "nm, um or eV, e.g. 'wavelength (nm)', "
+                          "or set light.wavelength_unit")
+    au = _parse_unit(axis_unit)
+    if au is None or au[0] not in ({"L": 1}, {"E": 1}):
+        fail(head_no, f"column {ia + 1} {cells[ia]!r}: unit {axis_unit!r} is not a wavelength or photon energy unit",
+             "nm, um, eV")
+    if value_unit is None:
+        fail(head_no, f"column {iv + 1} {cells[iv]!r} gives no unit",
+             ALLOWED_SPECTRUM_UNITS + "; e.g. 'irradiance (W m^-2 nm^-1)', or set light.irradiance_unit")
+    vu = _parse_unit(value_unit)
+    kinds = {(("L", -3), ("P", 1)): (True, "L"), (("E", -1), ("L", -2), ("P", 1)): (True, "E"),
+             (("L", -3), ("T", -1)): (False, "L"), (("E", -1), ("L", -2), ("T", -1)): (False, "E")}
+    kind = kinds.get(tuple(sorted(vu[0].items()))) if vu is not None else None
+    if kind is None:
+        fail(head_no, f"column {iv + 1} {cells[iv]!r}: unit {value_unit!r} is not a spectral irradiance or photon "
+                      "flux per wavelength or energy interval", ALLOWED_SPECTRUM_UNITS)
+    is_power, per = kind
+
+    need = max(ia, iv) + 1
+    x = np.empty(len(data))
+    y = np.empty(len(data))
+    for r, (line_no, line) in enumerate(data):
+        row = _cells(line, delim)
+        if len(row) < need:
+            fail(line_no, f"{len(row)} field(s), column {need} is needed", f"rows with the {len(cells)} columns "
+                          "of the header, separated like it")
+        for k, dest in ((ia, x), (iv, y)):
+            try:
+                dest[r] = number(row[k])
+            except ValueError:
+                fail(line_no, f"column {k + 1} ({cells[k]!r}): not a number: {row[k]!r}", "a decimal number")
+            if not math.isfinite(dest[r]):
+                fail(line_no, f"column {k + 1} ({cells[k]!r}): values must be finite, got {row[k]!r}")
+        if x[r] <= 0:
+            fail(line_no, f"column {ia + 1} ({cells[ia]!r}) must be > 0, got {row[ia]!r}")
+        if y[r] < 0:
+            fail(line_no, f"column {iv + 1} ({cells[iv]!r}) must be >= 0, got {row[iv]!r}")
+        if r >= 1 and (x[r] - x[r - 1]) * (x[1] - x[0]) <= 0:
+            fail(line_no, f"column {ia + 1} ({cells[ia]!r}) {row[ia]} does not continue the order of the rows "
+                          "above (values must rise or fall strictly)")
+    if len(data) < 2:
+        fail(lines[-1][0], f"at least two data rows are needed, found {len(data)}")
+    # axis -> wavelength [nm] and photon energy [eV]; values -> per nm (Jacobian |dE/dlambda| = E / lambda)
+    if au[0] == {"L": 1}:
+        wl = x * au[1]
+    else:
+        wl = hc_eV_nm / (x * au[1])
+    dens = y * vu[1]                               # [W or s^-1] nm^-2 per nm or per eV
+    if per == "E":
+        dens = dens * (hc_eV_nm / wl) / wl
+    if is_power:
+        E = dens * 1e18                            # W nm^-2 nm^-1 -> W m^-2 nm^-1 (1 nm^-2 = 1e18 m^-2)
+    else:
+        E = irradiance_from_photon_flux(wl, dens * 1e14)     # nm^-2 s^-1 nm^-1 -> cm^-2 s^-1 nm^-1
+    order = np.argsort(wl)
+    return wl[order], E[order]
+
+
+def spectrum_from_data(data, field: str = "spectrum") -> Spectrum:
+    """A Spectrum from Python data: a `Spectrum`; a pair (wavelength [nm], spectral irradiance
+    [W m^-2 nm^-1]) of arrays; a pandas Series (index: wavelength [nm], values: irradiance
+    [W m^-2 nm^-1]; a unit in the index or series name, e.g. "wavelength (um)", is read as in
+    a file); or a pandas DataFrame with columns named as in a file (`read_spectrum`)."""
+    if isinstance(data, Spectrum):
+        return data
+    if hasattr(data, "to_csv") and hasattr(data, "index"):       # pandas: go through the file reader's rules
+        import io
+        import tempfile
+        if hasattr(data, "columns"):
+            frame = data
+        else:
+            frame = data.rename(data.name or "irradiance (W m^-2 nm^-1)").to_frame()
+            frame.index.name = frame.index.name or "wavelength (nm)"
+            frame = frame.reset_index()
+        header = [str(c) for c in frame.columns]
+        header = [h if _split_header_cell(h)[1] or _split_header_cell(h)[0] not in _AXIS_ALIASES
+                  else f"{h} (nm)" for h in header]
+        header = [h if _split_header_cell(h)[1] or _split_header_cell(h)[0] not in _VALUE_ALIASES
+                  else f"{h} (W m^-2 nm^-1)" for h in header]
+        buf = io.StringIO()
+        frame.to_csv(buf, index=False, header=header, float_format="%.17g")
+        with tempfile.TemporaryDirectory() as tmp:
+            p = Path(tmp) / "spectrum.csv"
+            p.write_text(buf.getvalue(), encoding="utf-8")
+            try:
+                wl, E = read_spectrum(p, field=field)
+            except InputError as err:
+                raise InputError(field, "the pandas object", str(err.allowed or err), err.hint) from None
+        return Spectrum(wl, E, "spectrum from pandas")
+    try:
+        wl, E = (np.asarray(a, dtype=float) for a in data)
+    except (TypeError, ValueError):
+        raise InputError(field, type(data).__name__, "a Spectrum, (wavelength_nm, irradiance_W_m2_nm) arrays, "
+                         "a pandas Series (index wavelength in nm) or DataFrame") from None
+    if wl.ndim != 1 or wl.shape != E.shape or wl.size < 2:
+        raise InputError(field, f"arrays of shapes {wl.shape} and {E.shape}",
+                         "two 1-D arrays of the same length, at least 2")
+    if not (np.all(np.isfinite(wl)) and np.all(np.isfinite(E))) or np.any(wl <= 0) or np.any(E < 0):
+        raise InputError(field, "the arrays", "finite wavelengths > 0 nm and irradiances >= 0 W m^-2 nm^-1")
+    d = np.diff(wl)
+    if not (np.all(d > 0) or np.all(d < 0)):
+        raise InputError(field, "the wavelengths", "strictly rising or falling values")
+    order = np.argsort(wl)
+    return Spectrum(wl[order], E[order], "spectrum from arrays")
 
 
 # ---------------------------------------------------------------------------
@@ -483,7 +779,8 @@ def source_from_table(table: dict, base_dir=".") -> Spectrum:
     elif kind == "led":
         shape = led(need("peak_nm"), need("fwhm_nm"), 1.0, spot_area_cm2=1.0)
     else:
-        shape = from_file(Path(base_dir) / str(need("path")))
+        shape = from_file(Path(base_dir) / str(need("path")), table.get("wavelength_column"),
+                          table.get("irradiance_column"), table.get("wavelength_unit"), table.get("irradiance_unit"))
         if not scaling and not spot:
             return shape
     if len(scaling) != 1:

@@ -28,7 +28,7 @@ from typing import Mapping, NamedTuple
 
 import numpy as np
 
-from ._dispatch import pick
+from . import registry
 from .errors import InputError, check_range, did_you_mean
 
 FRONT_FIELD = "optics.front_reflectance"
@@ -39,11 +39,25 @@ FRONT_FIELD = "optics.front_reflectance"
 # ---------------------------------------------------------------------------
 
 def reflectance_fresnel_normal(n, k=0.0):
-    """Reflectance of a bare surface at normal incidence from air (Fresnel) [-].
+    """Reflectance of a bare surface at normal incidence from air (Fresnel).
 
-    R = ((n - 1)^2 + k^2) / ((n + 1)^2 + k^2)
-    E. Hecht, Optics, 4th ed. (2002), Sec. 4.6 (normal incidence, absorbing medium N = n - ik).
-    n: refractive index [-]; k: extinction coefficient [-]
+    R = ((n - 1)^2 + k^2) / ((n + 1)^2 + k^2)   (absorbing medium N = n - ik).
+
+    Parameters
+    ----------
+    n : array_like
+        Refractive index [-].
+    k : array_like
+        Extinction coefficient [-].
+
+    Returns
+    -------
+    ndarray
+        R [-].
+
+    References
+    ----------
+    E. Hecht, Optics, 4th ed. (Addison-Wesley, 2002), Sec. 4.6.
     """
     n = np.asarray(n, float)
     k = np.asarray(k, float)
@@ -51,16 +65,35 @@ def reflectance_fresnel_normal(n, k=0.0):
 
 
 def reflectance_single_layer(wavelength_nm, n_coating, thickness_nm, n, k=0.0, n_ambient=1.0):
-    """Reflectance of a single non-absorbing thin film on an absorbing substrate, normal incidence [-].
+    """Reflectance of a single non-absorbing thin film on an absorbing substrate, normal incidence.
 
     r = (r01 + r12 e^{-2i delta}) / (1 + r01 r12 e^{-2i delta}),  R = |r|^2,
     r01 = (n0 - n1)/(n0 + n1), r12 = (n1 - N2)/(n1 + N2), N2 = n - ik,
-    delta = 2 pi n1 d / lambda.
-    Airy summation of a thin film: M. Born and E. Wolf, Principles of Optics, 7th ed. (1999),
-    Sec. 1.6.4; O. S. Heavens, Optical Properties of Thin Solid Films (1955).  A quarter-wave
-    layer (n1 d = lambda/4) with n1 = sqrt(n0 n2) gives R = 0 on a lossless substrate.
-    wavelength_nm [nm]; n_coating n1 [-]; thickness_nm d [nm]; n, k of the substrate [-];
-    n_ambient n0 [-]
+    delta = 2 pi n1 d / lambda.  A quarter-wave layer (n1 d = lambda/4) with n1 = sqrt(n0 n2)
+    gives R = 0 on a lossless substrate.
+
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Vacuum wavelength [nm].
+    n_coating : array_like
+        Coating index n1 [-].
+    thickness_nm : array_like
+        Coating thickness d [nm].
+    n, k : array_like
+        Optical constants of the substrate [-].
+    n_ambient : float
+        Ambient index n0 [-].
+
+    Returns
+    -------
+    ndarray
+        R [-].
+
+    References
+    ----------
+    M. Born and E. Wolf, Principles of Optics, 7th ed. (Cambridge, 1999), Sec. 1.6.4;
+    O. S. Heavens, Optical Properties of Thin Solid Films (Butterworths, 1955).
     """
     n1 = np.asarray(n_coating, float)
     N2 = np.asarray(n, float) - 1j * np.asarray(k, float)
@@ -72,10 +105,21 @@ def reflectance_single_layer(wavelength_nm, n_coating, thickness_nm, n, k=0.0, n
 
 
 def reflectance_from_file(path, wavelength_nm):
-    """Reflectance from a CSV (columns wavelength_nm, reflectance), interpolated onto wavelength_nm [-].
+    """Reflectance from a CSV (columns wavelength_nm, reflectance), interpolated onto wavelength_nm.
 
     Linear interpolation; outside the file's range the end values are held.
-    path: the CSV file; wavelength_nm [nm]
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file [-].
+    wavelength_nm : array_like
+        Wavelengths [nm].
+
+    Returns
+    -------
+    ndarray
+        R [-].
     """
     from .light import read_columns   # the shared, validating CSV reader
     wl, R, _ = read_columns(path, ("reflectance",), field=FRONT_FIELD)
@@ -87,11 +131,27 @@ _COATING_KEYS = ("n_coating", "thickness_nm")
 
 
 def front_reflectance(spec, wavelength_nm, n=None, k=None, base_dir="."):
-    """Front reflectance R_f(lambda) [-] from a model spec (see module docstring).
+    """Front reflectance R_f(lambda) from a model spec (see the module docstring).
 
-    spec: number/array in [0, 1] | "bare" | {"n_coating", "thickness_nm"} | {"path"} | a CSV path
-    wavelength_nm [nm]; n, k: absorber optical constants on the same grid [-] (for "bare"
-    and coatings); base_dir: directory that relative file paths refer to.
+    Parameters
+    ----------
+    spec : float, array, str or mapping
+        A number/array in [0, 1] | "bare" | {"n_coating", "thickness_nm"} | {"path"} | a CSV path [-].
+    wavelength_nm : array_like
+        Wavelengths [nm].
+    n, k : array_like, optional
+        Absorber optical constants on the same grid (for "bare" and coatings) [-].
+    base_dir : str or Path
+        Directory that relative file paths refer to [-].
+
+    Returns
+    -------
+    ndarray or float
+        R_f [-].
+
+    References
+    ----------
+    `reflectance_fresnel_normal`, `reflectance_single_layer`.
     """
     if isinstance(spec, Mapping):
         spec = dict(spec)
@@ -148,8 +208,23 @@ class Passes(NamedTuple):
 def path_single(n, rear_R):
     """Beer-Lambert single pass: c = 1, no rear or internal reflection.
 
-    A = (1 - R_f)(1 - e^{-alpha W}); A. Beer, Ann. Phys. Chem. 86, 78 (1852).
-    Returns (c [-], rear reflectance used [-], internal front reflectance [-]).
+    A = (1 - R_f)(1 - e^{-alpha W}).
+
+    Parameters
+    ----------
+    n : array_like
+        Refractive index (not used) [-].
+    rear_R : array_like
+        Rear reflectance (not used: light reaching the rear leaves) [-].
+
+    Returns
+    -------
+    tuple
+        c [-], rear reflectance used [-], internal front reflectance [-].
+
+    References
+    ----------
+    A. Beer, Ann. Phys. Chem. 86, 78 (1852).
     """
     return 1.0, 0.0, 0.0
 
@@ -158,7 +233,22 @@ def path_mirror(n, rear_R):
     """Planar absorber with a rear reflector, two passes (Beer-Lambert each way).
 
     A = (1 - R_f)(1 - e^{-alpha W})(1 + R_b e^{-alpha W}); light returning to the front leaves.
-    Returns (c [-], rear reflectance used [-], internal front reflectance [-]).
+
+    Parameters
+    ----------
+    n : array_like
+        Refractive index (not used) [-].
+    rear_R : array_like
+        Rear reflectance R_b [-].
+
+    Returns
+    -------
+    tuple
+        c [-], rear reflectance used [-], internal front reflectance [-].
+
+    References
+    ----------
+    A. Beer, Ann. Phys. Chem. 86, 78 (1852) (each pass).
     """
     return 1.0, rear_R, 0.0
 
@@ -171,26 +261,62 @@ def path_lambertian_green2002(n, rear_R):
     rear reflects R_b; of the light back at the front, 1/n^2 escapes and 1 - 1/n^2 is
     reflected internally.  Summing the round trips (geometric series):
         A = (1 - R_f)(1 - T)(1 + R_b T) / (1 - R_b T^2 (1 - 1/n^2)).
-    For R_b = 1, R_f = 0 this is A = (1 - e^{-4 alpha W}) / (1 - (1 - 1/n^2) e^{-4 alpha W}),
-    M. A. Green, Prog. Photovolt. 10, 235 (2002), doi:10.1002/pip.404; its weak-absorption
-    limit is 4 n^2 alpha W (E. Yablonovitch, J. Opt. Soc. Am. 72, 899 (1982);
-    T. Tiedje, E. Yablonovitch, G. D. Cody, B. G. Brooks, IEEE Trans. Electron Dev. 31, 711 (1984)).
-    Returns (c [-], rear reflectance used [-], internal front reflectance [-]).
+    For R_b = 1, R_f = 0 this is A = (1 - e^{-4 alpha W}) / (1 - (1 - 1/n^2) e^{-4 alpha W});
+    its weak-absorption limit is 4 n^2 alpha W.
+
+    Parameters
+    ----------
+    n : array_like
+        Refractive index, >= 1 [-].
+    rear_R : array_like
+        Rear reflectance R_b [-].
+
+    Returns
+    -------
+    tuple
+        c = 2 [-], rear reflectance used [-], internal front reflectance 1 - 1/n^2 [-].
+
+    References
+    ----------
+    M. A. Green, Prog. Photovolt. 10, 235 (2002), doi:10.1002/pip.404; E. Yablonovitch,
+    J. Opt. Soc. Am. 72, 899 (1982); T. Tiedje, E. Yablonovitch, G. D. Cody and B. G. Brooks,
+    IEEE Trans. Electron Dev. 31, 711 (1984).
     """
     n = check_range("absorber.refractive_index", n, 1.0, None)
     return 2.0, rear_R, 1.0 - 1.0 / np.asarray(n, float) ** 2
 
 
-LIGHT_PATHS = {"single": path_single, "mirror": path_mirror, "lambertian": path_lambertian_green2002}
-_PATH_ALIASES = {"singlepass": "single", "beerlambert": "single", "planar": "mirror", "doublepass": "mirror",
-                 "rearmirror": "mirror", "lambert": "lambertian", "green2002": "lambertian",
-                 "textured": "lambertian"}
+_KEY = "optics.light_path"
+registry.register(
+    "light_path", "single", path_single, key=_KEY, aliases=("singlepass", "beerlambert"),
+    summary="one pass, Beer-Lambert; light reaching the rear leaves",
+    reference="A. Beer, Ann. Phys. Chem. 86, 78 (1852)")
+registry.register(
+    "light_path", "mirror", path_mirror, key=_KEY, aliases=("planar", "doublepass", "rearmirror"),
+    summary="planar, a second pass after the rear reflectance")
+registry.register(
+    "light_path", "lambertian", path_lambertian_green2002, key=_KEY, aliases=("lambert", "green2002", "textured"),
+    summary="Lambertian light trapping generalised to a rear reflectance R_b (default)",
+    reference="M. A. Green, Prog. Photovolt. 10, 235 (2002)", doi="10.1002/pip.404")
+
+#: canonical light path name -> pass parameters (n, rear_R) -> (c, R_b, r_i) (a view of the registry)
+LIGHT_PATHS = {m.name: m.function for m in registry.models("light_path", load=False)}
 
 
 def light_path_name(light_path: str) -> str:
-    """The canonical name ("single", "mirror" or "lambertian") of a light path [-]."""
-    fn = pick("optics.light_path", light_path, LIGHT_PATHS, _PATH_ALIASES)
-    return next(k for k, v in LIGHT_PATHS.items() if v is fn)
+    """The canonical name of a light path.
+
+    Parameters
+    ----------
+    light_path : str
+        A registered "light_path" model or alias, e.g. "Lambertian" [-].
+
+    Returns
+    -------
+    str
+        "single", "mirror" or "lambertian" [-].
+    """
+    return registry.pick("light_path", light_path, _KEY).name
 
 
 def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Passes:
@@ -198,8 +324,28 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Pa
 
     With T = e^{-c alpha W}, internal front reflectance r_i and rear reflectance R_b:
       down = (1 - R_f) / (1 - R_b r_i T^2),  up = down R_b T,  A = (down + up)(1 - T).
-    alpha_cm1: absorption coefficient [cm^-1]; thickness_cm W [cm]; n: refractive index [-]
-    front_R, rear_R: front (external) and rear reflectance [-]; path: see LIGHT_PATHS.
+
+    Parameters
+    ----------
+    alpha_cm1 : array_like
+        Absorption coefficient [cm^-1].
+    thickness_cm : array_like
+        Absorber thickness W [cm].
+    n : array_like
+        Refractive index [-].
+    front_R, rear_R : array_like
+        Front (external) and rear reflectance [-].
+    path : str
+        A registered "light_path" model [-].
+
+    Returns
+    -------
+    Passes
+        c [-], down [-], up [-], absorptance [-].
+
+    References
+    ----------
+    The chosen light path's (`optogen.registry.models("light_path")`).
     """
     alpha = check_range("absorber.alpha_cm1", alpha_cm1, 0.0, None, unit="cm^-1")
     W = np.asarray(thickness_cm, float)
@@ -207,7 +353,7 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Pa
         raise InputError("absorber.thickness_um", W * 1e4, "must be > 0 um and finite")
     front_R = check_range(FRONT_FIELD, front_R, 0.0, 1.0)
     rear_R = check_range("optics.rear_reflectance", rear_R, 0.0, 1.0)
-    c, Rb, r_i = pick("optics.light_path", path, LIGHT_PATHS, _PATH_ALIASES)(n, rear_R)
+    c, Rb, r_i = registry.pick("light_path", path, _KEY).call(n, rear_R)
     tau = c * alpha * W                                   # optical depth of one pass [-]
     T = np.exp(-tau)
     one_minus_T = -np.expm1(-tau)
@@ -219,8 +365,28 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Pa
 
 
 def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian"):
-    """Absorptance A [-] of the absorber for a light path (see `passes`); broadcasts.
+    """Absorptance A of the absorber for a light path (see `passes`); broadcasts.
 
-    alpha_cm1 [cm^-1]; thickness_cm [cm]; n [-]; front_R, rear_R [-]; path: single|mirror|lambertian
+    Parameters
+    ----------
+    alpha_cm1 : array_like
+        Absorption coefficient [cm^-1].
+    thickness_cm : array_like
+        Absorber thickness [cm].
+    n : array_like
+        Refractive index [-].
+    front_R, rear_R : array_like
+        Front and rear reflectance [-].
+    path : str
+        "single", "mirror" or "lambertian" (a registered "light_path" model) [-].
+
+    Returns
+    -------
+    ndarray
+        A [-].
+
+    References
+    ----------
+    The chosen light path's (`optogen.registry.models("light_path")`).
     """
     return passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path).absorptance

@@ -1,7 +1,8 @@
 """Matplotlib figures for single points, sweeps, detectors and depth profiles.
 
-Every function builds a `matplotlib.figure.Figure` directly (no pyplot state),
-so nothing needs a display; `save_figure` writes a PNG atomically.  Inputs are
+Every function draws into the Axes given as ``ax=`` or builds a `matplotlib.figure.Figure`
+directly (no pyplot state, so nothing needs a display), and returns the Axes (an array of
+Axes for a multi-panel figure); `save_figure` writes a PNG atomically.  Inputs are
 plain numpy arrays or xarray objects, in the package's units (densities cm^-3,
 depth cm, energies eV above the valence band edge, lifetimes s, current density
 mA cm^-2, rates cm^-3 s^-1).
@@ -14,59 +15,30 @@ from typing import Mapping
 
 import numpy as np
 
-from .scenario import UNIT_SUFFIXES as _SCENARIO_UNITS
 from matplotlib.figure import Figure
 from matplotlib.ticker import LogLocator, MaxNLocator
 
 from .constants import k_B_eV_K
 from .errors import InputError
+from .scenario import UNIT_SUFFIXES as _SCENARIO_UNITS
+from .scenario import label as _label
+from .scenario import long_name as _long_name
+from .scenario import unit_of as _unit_of
 
 # --------------------------------------------------------------------------
-# labels
+# labels: the one table of names (optogen.scenario.LONG_NAMES) and the one unit spelling
+# (optogen.scenario.UNIT_SUFFIXES), shared with the long_name / units attributes of the files
 # --------------------------------------------------------------------------
 
-#: unit suffix of a key -> unit as printed on an axis (longest suffix tried first)
-UNIT_SUFFIXES: dict[str, str] = {"_" + k: people for k, (_, people) in _SCENARIO_UNITS.items()
-                                 if k != "suns"}
+#: unit suffix of a key -> unit as written on an axis (longest suffix tried first)
+UNIT_SUFFIXES: dict[str, str] = {"_" + k: unit for k, unit in _SCENARIO_UNITS.items()}
 _SUFFIX_ORDER = sorted(UNIT_SUFFIXES, key=len, reverse=True)
 
-#: swept keys with a name a reader recognises at once
-_KNOWN_KEYS: dict[str, str] = {
-    "light.suns": "irradiance (suns)",
-    "light.irradiance_W_m2": "irradiance (W m⁻²)",
-    "light.photon_flux_cm2_s": "photon flux (cm⁻² s⁻¹)",
-    "light.power_W": "light power (W)",
-    "absorber.temperature_K": "temperature (K)",
-    "temperature_K": "temperature (K)",
-    "absorber.thickness_um": "absorber thickness (µm)",
-    "absorber.donors_cm3": "donor density (cm⁻³)",
-    "absorber.acceptors_cm3": "acceptor density (cm⁻³)",
-    "absorber.resistivity_ohm_cm": "resistivity (Ω cm)",
-    "background.temperature_K": "background temperature (K)",
-}
-
-#: result variables -> axis label with unit
-_VAR_LABELS: dict[str, str] = {
-    "implied_voc_V": "implied Voc (V)",
-    "tau_eff_s": "effective lifetime (s)",
-    "delta_n_cm3": "excess carrier density Δn (cm⁻³)",
-    "delta_p_cm3": "excess hole density Δp (cm⁻³)",
-    "np_over_ni2": "n·p / n_i,eff²",
-    "splitting_eV": "quasi-Fermi level splitting (eV)",
-    "implied_ff": "implied fill factor",
-    "n_cm3": "electron density n (cm⁻³)",
-    "p_cm3": "hole density p (cm⁻³)",
-    "n0_cm3": "dark electron density n₀ (cm⁻³)",
-    "p0_cm3": "dark hole density p₀ (cm⁻³)",
-    "conductivity_contrast": "conductivity contrast Δσ/σ₀",
-}
-
 _ENERGY_LABEL = r"energy above $E_\mathrm{v}$ (eV)"
-_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 
 def split_unit(key: str) -> tuple[str, str | None]:
-    """Split a key into (name, printed unit): "temperature_K" -> ("temperature", "K")."""
+    """Split a key into (name, unit): "temperature_K" -> ("temperature", "K")."""
     for suffix in _SUFFIX_ORDER:
         if key.endswith(suffix) and len(key) > len(suffix):
             return key[: -len(suffix)], UNIT_SUFFIXES[suffix]
@@ -74,10 +46,10 @@ def split_unit(key: str) -> tuple[str, str | None]:
 
 
 def key_label(key: str) -> str:
-    """A readable label for a dotted scenario key or a result name.
+    """A readable label for a dotted scenario key or a result name, from its suffix alone.
 
-    "light.suns" -> "light: suns"; "absorber.temperature_K" -> "absorber temperature (K)";
-    "absorber.donors_cm3" -> "absorber donors (cm⁻³)"; "tau_eff_s" -> "tau eff (s)".
+    "light.suns" -> "light suns (kW m^-2)"; "absorber.donors_cm3" -> "absorber donors (cm^-3)";
+    "tau_eff_s" -> "tau eff (s)"; "light.photon_count" -> "light: photon count".
     """
     name, unit = split_unit(str(key))
     parts = [p.replace("_", " ") for p in name.split(".")]
@@ -86,29 +58,34 @@ def key_label(key: str) -> str:
     return f"{' '.join(parts)} ({unit})"
 
 
+_LEGACY = ((r"⁻", "-"), (r"µ|μ", "u"), (r"Ω", "ohm"))
+
+
 def pretty_unit(units: str) -> str:
-    """Print a units attribute readably: "cm^-3 s^-1" -> "cm⁻³ s⁻¹", "um" -> "µm"."""
-    text = re.sub(r"\bum\b", "µm", str(units))
-    text = re.sub(r"\bohm\b", "Ω", text)
-    text = re.sub(r"\*\*|\^", "^", text)
-    return re.sub(r"(?<=[A-Za-zµΩ])\^?(-?\d+)\b", lambda m: m.group(1).translate(_SUPERSCRIPT), text)
+    """A units string in the one spelling: caret before every exponent ("cm-3 s-1", "cm^-3 s^-1",
+    "cm^-3 s^-1" -> "cm^-3 s^-1"; "µm" -> "um"); a spelling already right is returned as it is."""
+    text = str(units)
+    sup = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
+    text = text.translate(sup)
+    for pat, rep in _LEGACY:
+        text = re.sub(pat, rep, text)
+    text = text.replace("**", "^")
+    return re.sub(r"(?<=[A-Za-z])(?<!\^)(-?\d+)\b", r"^\1", text)
 
 
 def axis_label(name: str, attrs: Mapping | None = None) -> str:
-    """Axis label for a coordinate or variable: its long_name or known name, with its unit."""
+    """Axis label of a coordinate or variable: its name from the shared table, then its unit.
+
+    A Dataset variable's own ``long_name`` and ``units`` attributes win; a coordinate's
+    ``scenario_key`` finds the table entry of its dotted key.
+    """
     attrs = dict(attrs or {})
-    if name in _KNOWN_KEYS:
-        return _KNOWN_KEYS[name]
-    if name in _VAR_LABELS:
-        return _VAR_LABELS[name]
-    if "long_name" in attrs:
-        units = attrs.get("units")
-        return f"{attrs['long_name']} ({pretty_unit(units)})" if units else str(attrs["long_name"])
-    label = key_label(name)
-    units = attrs.get("units")
-    if split_unit(name)[1] is None and units and str(units) not in ("1", ""):
-        label += f" ({pretty_unit(units)})"
-    return label
+    name = str(attrs.get("scenario_key", name))
+    if "long_name" in attrs or "units" in attrs:
+        text = str(attrs.get("long_name", _long_name(name)))
+        units = attrs.get("units", _unit_of(name))
+        return f"{text} ({pretty_unit(units)})" if units not in (None, "", "1") else text
+    return _label(name)
 
 
 def _sci(value: float, digits: int = 2) -> str:
@@ -135,6 +112,37 @@ def _number(value) -> str:
 
 def _figure(width: float, height: float) -> Figure:
     return Figure(figsize=(width, height), dpi=110, layout="constrained")
+
+
+def _one_axes(ax, width: float, height: float):
+    """(figure, axes): a new figure of the given size with one axes when `ax` is None, else `ax`'s."""
+    if ax is None:
+        fig = _figure(width, height)
+        return fig, fig.subplots()
+    return figure_of(ax), ax
+
+
+def _several_axes(ax, n: int, width: float, height: float, **subplots):
+    """(figure, n axes as an array): a new figure when `ax` is None, else the n Axes given."""
+    if ax is None:
+        fig = _figure(width, height)
+        return fig, np.atleast_1d(fig.subplots(**subplots)).ravel()
+    axes = np.atleast_1d(np.asarray(ax, dtype=object)).ravel()
+    if axes.size != n:
+        raise InputError("ax", f"{axes.size} Axes", f"one Axes per panel: {n} here")
+    return figure_of(axes[0]), axes
+
+
+def figure_of(obj) -> Figure:
+    """The Figure behind a Figure, an Axes or a sequence of Axes (what the plot functions return)."""
+    if isinstance(obj, Figure):
+        return obj
+    if isinstance(obj, (list, tuple, np.ndarray)):
+        obj = np.ravel(np.asarray(obj, dtype=object))[0]
+    fig = obj.figure
+    while not isinstance(fig, Figure):          # an Axes inside a SubFigure
+        fig = fig.figure
+    return fig
 
 
 def _spans_decades(values, decades: float = 2.0) -> bool:
@@ -190,22 +198,33 @@ def _mark_missing(ax, x, y) -> None:
 # --------------------------------------------------------------------------
 
 _LINE_PANELS = (("implied_voc_V", False), ("tau_eff_s", True), ("delta_n_cm3", True), ("np_over_ni2", True))
+_LOG_VARS = {"np_over_ni2", "conductivity_contrast"}
 
 
-def sweep_lines(ds) -> Figure:
+def sweep_lines(ds, ax=None, panels=None):
     """2x2 panels of implied Voc, tau_eff, Δn and n·p/n_i,eff² over one swept key.
 
     ds: xarray.Dataset with one swept dimension (named by its dotted scenario key,
     coordinate attrs "units") and variables implied_voc_V [V], tau_eff_s [s],
     delta_n_cm3 [cm^-3], np_over_ni2 [1].  A missing variable leaves its panel
-    saying so.  Returns a Figure with four axes.
+    saying so.  ax: None (a new 2x2 figure), one Axes (draws the first panel, implied Voc,
+    or the first of `panels`) or a sequence of Axes, one per panel; panels: variable names to
+    draw instead of the four.  Returns the Axes (an array of them for several panels).
     """
     ds, dim = _one_dim(ds, "plots.sweep_lines")
-    fig = _figure(9.0, 6.4)
-    axes = fig.subplots(2, 2, sharex=True).ravel()
-    for ax, (var, log) in zip(axes, _LINE_PANELS):
+    chosen = _LINE_PANELS if panels is None else tuple((v, v in _LOG_VARS or v.endswith(("_cm3", "_s")))
+                                                       for v in panels)
+    single = ax is not None and not isinstance(ax, (list, tuple, np.ndarray))
+    if single:                                   # one Axes: the first panel only
+        chosen = chosen[:1]
+    if ax is None and panels is None:
+        fig, axes = _several_axes(None, 4, 9.0, 6.4, nrows=2, ncols=2, sharex=True)
+    else:
+        fig, axes = _several_axes([ax] if single else ax, len(chosen), 4.6 * len(chosen) + 0.4, 3.6,
+                                  ncols=len(chosen))
+    for ax, (var, log) in zip(axes, chosen):
         x = _x_setup(ax, ds, dim)
-        ax.set_ylabel(axis_label(var))
+        ax.set_ylabel(axis_label(var, ds[var].attrs if var in ds else None))
         if var not in ds:
             ax.text(0.5, 0.5, f"{var} not in this result", transform=ax.transAxes,
                     ha="center", va="center", color="0.4")
@@ -222,10 +241,11 @@ def sweep_lines(ds) -> Figure:
                     fontsize=8, va="bottom")
             ax.set_ylim(bottom=0.3)
         ax.grid(True, which="major", alpha=0.3)
-    for ax in axes[:2]:
-        ax.set_xlabel("")
-    fig.suptitle(f"Sweep over {axis_label(dim, ds[dim].attrs).split(' (')[0]}")
-    return fig
+    if len(axes) == 4 and panels is None and not single:
+        for ax in axes[:2]:
+            ax.set_xlabel("")
+        fig.suptitle(f"Sweep over {axis_label(dim, ds[dim].attrs).split(' (')[0]}")
+    return axes[0] if single else axes
 
 
 def _log10_field(ds, var: str) -> np.ndarray:
@@ -238,7 +258,7 @@ def _log10_field(ds, var: str) -> np.ndarray:
         out = np.where(values > 0, np.log10(np.where(values > 0, values, 1.0)), np.nan)
     if var == "np_over_ni2" and "splitting_eV" in ds:
         temp = None
-        for name in ("absorber.temperature_K", "temperature_K"):
+        for name in ("absorber_temperature_K", "absorber.temperature_K", "temperature_K"):
             if name in ds.coords or name in ds:
                 temp = ds[name]
                 break
@@ -289,15 +309,16 @@ def _map_panel(ax, ds, var, xdim, ydim, log: bool, cmap: str, mass_action: bool 
 
 
 def sweep_map(ds, var: str = "np_over_ni2", log: bool = True, *, x: str | None = None,
-              second: str | None = "implied_voc_V") -> Figure:
+              second: str | None = "implied_voc_V", ax=None):
     """Filled map with labelled contours of `var` over two swept keys.
 
     ds: xarray.Dataset with two swept dimensions; var: variable to map
     (log10 of it when `log`); x: dimension on the horizontal axis (default the
     first); second: a variable mapped on linear colour in a second panel (None
     for one panel; dropped if absent or equal to `var`).  Axes with more than two
-    decades of positive coordinates are logarithmic.  Returns a Figure with one
-    axes plus colour bar per panel.
+    decades of positive coordinates are logarithmic.  ax: None (a new figure), one
+    Axes (the `var` panel only) or two Axes (both panels).  Returns the Axes (an array for
+    two panels); each panel gets a colour bar.
     """
     ds = ds.squeeze(drop=False)
     dims = [d for d in ds[var].dims if ds.sizes[d] > 1] if var in ds else []
@@ -311,10 +332,10 @@ def sweep_map(ds, var: str = "np_over_ni2", log: bool = True, *, x: str | None =
         raise InputError("plots.sweep_map.x", x, "one of " + ", ".join(dims))
     ydim = dims[1] if xdim == dims[0] else dims[0]
     panels = [(var, log)]
-    if second and second != var and second in ds:
+    single = ax is not None and not isinstance(ax, (list, tuple, np.ndarray))
+    if second and second != var and second in ds and not single:
         panels.append((second, False))
-    fig = _figure(6.0 * len(panels) + 0.6, 4.9)
-    axes = np.atleast_1d(fig.subplots(1, len(panels)))
+    fig, axes = _several_axes([ax] if single else ax, len(panels), 6.0 * len(panels) + 0.6, 4.9, ncols=len(panels))
     for ax, (name, lg) in zip(axes, panels):
         label = axis_label(name, ds[name].attrs)
         filled = _map_panel(ax, ds, name, xdim, ydim, lg, "viridis" if lg else "plasma",
@@ -330,7 +351,7 @@ def sweep_map(ds, var: str = "np_over_ni2", log: bool = True, *, x: str | None =
             cbar_label = label
         if filled is not None:
             fig.colorbar(filled, ax=ax, label=cbar_label.strip())
-    return fig
+    return axes[0] if single or len(axes) == 1 else axes
 
 
 # --------------------------------------------------------------------------
@@ -346,18 +367,18 @@ def _mechanism(key: str) -> str:
     return _MECHANISM_NAMES.get(base.lower(), base.replace("_", " "))
 
 
-def lifetime_curve(delta_n_cm3, tau: Mapping[str, np.ndarray], operating_dn=None) -> Figure:
+def lifetime_curve(delta_n_cm3, tau: Mapping[str, np.ndarray], operating_dn=None, ax=None):
     """Effective lifetime and each mechanism's lifetime against Δn, log-log.
 
     delta_n_cm3: excess carrier densities [cm^-3]; tau: name -> lifetime [s]
     over delta_n_cm3 (a key "eff"/"tau_eff_s" is the effective lifetime, drawn
     bold; others e.g. srh, radiative, auger, surface); operating_dn: Δn of the
     operating point, marked [cm^-3].  Infinite lifetimes (absent mechanisms) are
-    left out.  Returns a Figure with one axes.
+    left out.  ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
     dn = np.asarray(delta_n_cm3, dtype=float)
-    fig = _figure(6.4, 4.6)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.4, 4.6)
     _log_axis(ax, "x")
     _log_axis(ax, "y")
     eff_key = next((k for k in tau if re.sub(r"^tau_|_s$", "", k).lower() == "eff"), None)
@@ -373,7 +394,7 @@ def lifetime_curve(delta_n_cm3, tau: Mapping[str, np.ndarray], operating_dn=None
         else:
             colour, ls = next(styles)
             ax.plot(dn, t, ls, color=colour, lw=1.5, label=_mechanism(key))
-    ax.set_xlabel(_VAR_LABELS["delta_n_cm3"])
+    ax.set_xlabel(_label("delta_n_cm3"))
     ax.set_ylabel("lifetime (s)")
     if finite_eff is not None and np.isfinite(finite_eff).any():
         lo, hi = np.nanmin(finite_eff), np.nanmax(finite_eff)
@@ -384,11 +405,11 @@ def lifetime_curve(delta_n_cm3, tau: Mapping[str, np.ndarray], operating_dn=None
             ok = np.isfinite(finite_eff)
             t_op = 10 ** np.interp(np.log10(operating_dn), np.log10(dn[ok]), np.log10(finite_eff[ok]))
             ax.plot([operating_dn], [t_op], "o", color="crimson", ms=7, zorder=4,
-                    label=f"operating point: Δn = {_sci(operating_dn)} cm⁻³, τ = {_sci(t_op)} s")
+                    label=f"operating point: Δn = {_sci(operating_dn)} cm^-3, τ = {_sci(t_op)} s")
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best", framealpha=0.85)
     ax.set_title("Lifetime against injection")
-    return fig
+    return ax
 
 
 def _depth_axis(ax, depth_um: np.ndarray, g: np.ndarray) -> bool:
@@ -396,7 +417,7 @@ def _depth_axis(ax, depth_um: np.ndarray, g: np.ndarray) -> bool:
     d = np.asarray(depth_um, dtype=float)
     gg = np.nan_to_num(np.asarray(g, dtype=float), nan=0.0, posinf=0.0)
     if d.size < 3 or d.max() <= 0:
-        ax.set_xlabel("depth (µm)")
+        ax.set_xlabel("depth (um)")
         return False
     cum = np.concatenate([[0.0], np.cumsum(0.5 * (gg[1:] + gg[:-1]) * np.diff(d))])
     use_log = False
@@ -406,25 +427,25 @@ def _depth_axis(ax, depth_um: np.ndarray, g: np.ndarray) -> bool:
         use_log = d90 < 0.02 * d.max() and positive.size > 1 and positive.max() > 100 * positive.min()
     if use_log:
         _log_axis(ax, "x")
-        ax.set_xlabel("depth from the front (µm, log scale)")
+        ax.set_xlabel("depth from the front (um, log scale)")
         ax.set_xlim(positive.min(), positive.max())
     else:
-        ax.set_xlabel("depth from the front (µm)")
+        ax.set_xlabel("depth from the front (um)")
         ax.set_xlim(d.min(), d.max())
     return use_log
 
 
-def generation_profile(depth_cm, profile_cm3_s) -> Figure:
-    """Generation rate G(x) against depth (µm on the axis), log G.
+def generation_profile(depth_cm, profile_cm3_s, ax=None):
+    """Generation rate G(x) against depth (um on the axis), log G.
 
     depth_cm: depths from the front [cm]; profile_cm3_s: G at those depths
     [cm^-3 s^-1].  The depth average (trapezoid rule) is drawn dashed.  G more
-    than 15 decades below its peak is off the axis.  Returns a Figure with one axes.
+    than 15 decades below its peak is off the axis.  ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
     d_um = np.asarray(depth_cm, dtype=float) * 1e4
     g = np.asarray(profile_cm3_s, dtype=float)
-    fig = _figure(6.4, 4.4)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.4, 4.4)
     _log_axis(ax, "y")
     use_log = _depth_axis(ax, d_um, g)
     keep = d_um > 0 if use_log else np.ones(d_um.shape, bool)
@@ -433,25 +454,26 @@ def generation_profile(depth_cm, profile_cm3_s) -> Figure:
     if width > 0:
         mean = np.trapezoid(np.nan_to_num(g), d_um) / width
         if mean > 0:
-            ax.axhline(mean, color="0.3", ls="--", lw=1, label=f"depth average {_sci(mean)} cm⁻³ s⁻¹")
+            ax.axhline(mean, color="0.3", ls="--", lw=1, label=f"depth average {_sci(mean)} cm^-3 s^-1")
     peak = np.nanmax(_positive(g)) if np.isfinite(_positive(g)).any() else None
     if peak:
         low = np.nanmin(_positive(g))
         ax.set_ylim(max(low, peak * 1e-15) / 2.0, peak * 3.0)
-    ax.set_ylabel("generation rate G (cm⁻³ s⁻¹)")
+    ax.set_ylabel("generation rate G (cm^-3 s^-1)")
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best")
     ax.set_title("Generation profile")
-    return fig
+    return ax
 
 
-def implied_jv(voltage_V, current_mA_cm2, vmp=None, jmp=None, voc=None, ff=None) -> Figure:
+def implied_jv(voltage_V, current_mA_cm2, vmp=None, jmp=None, voc=None, ff=None, ax=None):
     """Implied J-V curve with power density, the maximum-power point and FF.
 
     voltage_V: implied voltages [V]; current_mA_cm2: current density, positive
     for generation [mA cm^-2]; vmp, jmp: maximum-power point [V], [mA cm^-2]
     (found from the curve when not given); voc: implied Voc [V]; ff: implied fill
-    factor [1].  Returns a Figure with two axes (current, power on the right).
+    factor [1].  ax: an Axes to draw into (None:
+    a new figure; power goes on a twin axis at the right).  Returns the current-density Axes.
     """
     v = np.asarray(voltage_V, dtype=float)
     j = np.asarray(current_mA_cm2, dtype=float)
@@ -460,23 +482,22 @@ def implied_jv(voltage_V, current_mA_cm2, vmp=None, jmp=None, voc=None, ff=None)
         i = int(np.nanargmax(p))
         vmp, jmp = float(v[i]), float(j[i])
     jsc = float(np.interp(0.0, v, j)) if v.min() <= 0.0 <= v.max() else float(np.nanmax(j))
-    fig = _figure(6.6, 4.6)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.6, 4.6)
     ax.plot(v, j, "-", color="C0", lw=2, label="J (left axis)")
     ax.fill_between([0, vmp], 0, jmp, color="C0", alpha=0.12, lw=0)
     ax.plot([vmp], [jmp], "o", color="crimson", ms=7, zorder=4, label="maximum power")
     ax.set_xlabel("implied voltage (V)")
-    ax.set_ylabel("current density J (mA cm⁻²)")
+    ax.set_ylabel("current density J (mA cm^-2)")
     ax2 = ax.twinx()
     ax2.plot(v, p, "-", color="C1", lw=1.2, alpha=0.8, label="power density (right axis)")
-    ax2.set_ylabel("power density (mW cm⁻²)", color="C1")
+    ax2.set_ylabel("power density (mW cm^-2)", color="C1")
     ax2.tick_params(axis="y", colors="C1")
     top = max(jsc, float(np.nanmax(j))) * 1.08
     ax.set_ylim(0.0, top)
     ax2.set_ylim(0.0, float(np.nanmax(p)) * 1.25)
     v_end = voc if voc is not None else float(v[np.isfinite(j) & (j >= 0)].max())
     ax.set_xlim(min(0.0, v.min()), v_end * 1.05)
-    lines = [f"Vmp = {vmp:.3f} V", f"Jmp = {_number(jmp)} mA cm⁻²"]
+    lines = [f"Vmp = {vmp:.3f} V", f"Jmp = {_number(jmp)} mA cm^-2"]
     if voc is not None:
         lines.insert(0, f"implied Voc = {voc:.3f} V")
     if ff is not None:
@@ -488,7 +509,7 @@ def implied_jv(voltage_V, current_mA_cm2, vmp=None, jmp=None, voc=None, ff=None)
     ax.legend(h1 + h2, l1 + l2, fontsize=8, loc="center left", bbox_to_anchor=(0.0, 0.55))
     ax.grid(True, alpha=0.3)
     ax.set_title("Implied J–V")
-    return fig
+    return ax
 
 
 def _spread_labels(positions, min_gap: float) -> np.ndarray:
@@ -512,13 +533,14 @@ def _spread_labels(positions, min_gap: float) -> np.ndarray:
     return out
 
 
-def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intrinsic_level_eV=None) -> Figure:
+def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intrinsic_level_eV=None, ax=None):
     """Flat-band level diagram: Ec, Ev, dark E_F, E_Fn, E_Fp and their splitting.
 
     All energies are measured upward from the valence band edge Ev [eV]:
     bandgap_eV is Ec - Ev; fermi_level_eV the dark Fermi level; electron_qfl_eV
     and hole_qfl_eV the quasi-Fermi levels under light; intrinsic_level_eV the
-    intrinsic level (optional).  Returns a Figure with one axes.
+    intrinsic level (optional).  ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
     eg = float(np.ravel(bandgap_eV)[0])
     ef = float(np.ravel(fermi_level_eV)[0])
@@ -536,8 +558,7 @@ def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intri
     energies = [e for _, e, *_ in levels]
     lo, hi = min(energies + [0.0]), max(energies + [eg])
     span = max(hi - lo, 1e-3)
-    fig = _figure(6.0, 4.8)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.0, 4.8)
     if missing:
         ax.text(0.99, 0.01, "no value: " + ", ".join(missing), transform=ax.transAxes, ha="right", va="bottom",
                 fontsize=8, color="0.4")
@@ -560,19 +581,20 @@ def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intri
     ax.set_xticks([])
     ax.set_ylabel(_ENERGY_LABEL)
     ax.set_title("Flat-band levels: dark and under light")
-    return fig
+    return ax
 
 
 # --------------------------------------------------------------------------
 # detector sweeps
 # --------------------------------------------------------------------------
 
-def detector_densities(ds) -> Figure:
+def detector_densities(ds, ax=None):
     """Dark (dashed) and illuminated (solid) electron and hole densities on one log axis.
 
     ds: 1-D xarray.Dataset (temperature or power sweep) with n0_cm3, p0_cm3,
     n_cm3, p_cm3 [cm^-3].  The majority carrier is the one with the larger
-    median dark density.  Returns a Figure with one axes.
+    median dark density.  ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
     ds, dim = _one_dim(ds, "plots.detector_densities")
     missing = [v for v in ("n0_cm3", "p0_cm3", "n_cm3", "p_cm3") if v not in ds]
@@ -580,8 +602,7 @@ def detector_densities(ds) -> Figure:
         raise InputError("plots.detector_densities", missing, "a Dataset with n0_cm3, p0_cm3, n_cm3 and p_cm3")
     n_major = np.nanmedian(ds["n0_cm3"].values) >= np.nanmedian(ds["p0_cm3"].values)
     role = {"n": "majority" if n_major else "minority", "p": "minority" if n_major else "majority"}
-    fig = _figure(6.6, 4.6)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.6, 4.6)
     x = _x_setup(ax, ds, dim)
     _log_axis(ax, "y")
     for carrier, colour, word in (("n", "C0", "electrons"), ("p", "C3", "holes")):
@@ -589,11 +610,11 @@ def detector_densities(ds) -> Figure:
                 label=f"{word} ({role[carrier]}), dark {carrier}₀")
         ax.plot(x, _positive(ds[f"{carrier}_cm3"].values), "-", color=colour, lw=2.2,
                 label=f"{word} ({role[carrier]}), illuminated {carrier}")
-    ax.set_ylabel("carrier density (cm⁻³)")
+    ax.set_ylabel("carrier density (cm^-3)")
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best", framealpha=0.85)
     ax.set_title("Dark and illuminated carrier densities")
-    return fig
+    return ax
 
 
 _GENERATION_VARS = (("thermal_generation_cm3_s", "thermal (dark)", "k", "-"),
@@ -622,7 +643,7 @@ def _free_height(ax, x, curves, at: float) -> float:
     return float(candidates[int(np.argmax(gap))])
 
 
-def detector_generation(ds, crossing=None) -> Figure:
+def detector_generation(ds, crossing=None, ax=None):
     """Thermal against background/optical generation over the sweep, log axis.
 
     ds: 1-D xarray.Dataset with thermal_generation_cm3_s and any of
@@ -631,15 +652,15 @@ def detector_generation(ds, crossing=None) -> Figure:
     (background photon noise above all other noise), else where G_bg > G_th;
     crossing: swept value (e.g. temperature [K]) where the background limit sets
     in, marked with a vertical line and label (None or NaN: not marked).
-    Returns a Figure with one axes.
+    ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
     ds, dim = _one_dim(ds, "plots.detector_generation")
     present = [row for row in _GENERATION_VARS if row[0] in ds]
     if not present:
         raise InputError("plots.detector_generation", list(ds.data_vars),
                          "a Dataset with thermal_generation_cm3_s and background/optical generation")
-    fig = _figure(6.6, 4.6)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.6, 4.6)
     x = _x_setup(ax, ds, dim)
     _log_axis(ax, "y")
     for var, label, colour, ls in present:
@@ -661,39 +682,40 @@ def detector_generation(ds, crossing=None) -> Figure:
                 f" background limit\n sets in: {_number(crossing)} {unit}",
                 transform=ax.get_xaxis_transform(), va="center", ha="left", fontsize=8, color="C1",
                 bbox=dict(fc="white", ec="none", alpha=0.85, pad=1))
-    ax.set_ylabel("generation rate (cm⁻³ s⁻¹)")
+    ax.set_ylabel("generation rate (cm^-3 s^-1)")
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best", framealpha=0.85)
     ax.set_title("Thermal against optical generation")
-    return fig
+    return ax
 
 
-def detector_contrast(ds) -> Figure:
+def detector_contrast(ds, ax=None):
     """Conductivity contrast Δσ/σ0 over the sweep, log axis.
 
     ds: 1-D xarray.Dataset with conductivity_contrast [1].  The line Δσ = σ0
-    (contrast 1) is drawn dotted.  Returns a Figure with one axes.
+    (contrast 1) is drawn dotted.  ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
     ds, dim = _one_dim(ds, "plots.detector_contrast")
     if "conductivity_contrast" not in ds:
         raise InputError("plots.detector_contrast", list(ds.data_vars), "a Dataset with conductivity_contrast")
-    fig = _figure(6.4, 4.4)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.4, 4.4)
     x = _x_setup(ax, ds, dim)
     _log_axis(ax, "y")
     y = _positive(ds["conductivity_contrast"].values)
     ax.plot(x, y, "-o", ms=3, color="C2", lw=2, label="Δσ/σ₀")
     _mark_missing(ax, x, y)
     ax.axhline(1.0, color="0.4", ls=":", lw=1, label="Δσ = σ₀")
-    ax.set_ylabel(_VAR_LABELS["conductivity_contrast"])
+    ax.set_ylabel(_label("conductivity_contrast"))
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best")
     ax.set_title("Illuminated against dark conductivity")
-    return fig
+    return ax
 
 
 def _is_temperature(dim: str) -> bool:
-    return dim == "temperature_K" or dim.endswith(".temperature_K") and dim.startswith("absorber")
+    """The absorber temperature, as a Dataset dimension ("absorber_temperature_K") or a dotted key."""
+    return dim in ("temperature_K", "absorber_temperature_K", "absorber.temperature_K")
 
 
 def _arrhenius_or_plain_x(ax, ds, dim) -> np.ndarray:
@@ -701,14 +723,14 @@ def _arrhenius_or_plain_x(ax, ds, dim) -> np.ndarray:
     if not _is_temperature(dim):
         return _x_setup(ax, ds, dim)
     T = np.asarray(ds[dim].values, dtype=float)
-    ax.set_xlabel("1000 / T (K⁻¹)")
+    ax.set_xlabel("1000 / T (K^-1)")
     top = ax.secondary_xaxis("top", functions=(lambda u: 1000.0 / np.where(u == 0, np.nan, u),
                                                lambda t: 1000.0 / np.where(t == 0, np.nan, t)))
     top.set_xlabel("temperature (K)")
     return 1000.0 / T
 
 
-def _detector_lines(ds, what, rows, ylabel, title, log=True, aux=()) -> Figure:
+def _detector_lines(ds, what, rows, ylabel, title, log=True, aux=(), ax=None):
     """One axes with a line per (variable, label, colour, style) row present in ds, against the swept key.
 
     Rows whose values are all missing (or, on a log axis, all <= 0) are left out; `aux`
@@ -722,8 +744,7 @@ def _detector_lines(ds, what, rows, ylabel, title, log=True, aux=()) -> Figure:
     present = [r for r in rows if r[0] in ds and usable(r[0])]
     if not present:
         raise InputError(what, list(ds.data_vars), "a Dataset with " + " or ".join(r[0] for r in rows))
-    fig = _figure(6.6, 4.8)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.6, 4.8)
     x = _arrhenius_or_plain_x(ax, ds, dim)
     if log:
         _log_axis(ax, "y")
@@ -742,36 +763,37 @@ def _detector_lines(ds, what, rows, ylabel, title, log=True, aux=()) -> Figure:
     ax.grid(True, which="major", alpha=0.3)
     ax.legend(fontsize=8, loc="best", framealpha=0.85)
     ax.set_title(title, fontsize=10, pad=34 if _is_temperature(dim) else 6)
-    return fig
+    return ax
 
 
-def detector_detectivity(ds) -> Figure:
+def detector_detectivity(ds, ax=None):
     """D* and the background limit D*_BLIP over a detector sweep, log y (1000/T axis for temperature).
 
     ds: 1-D Dataset with detectivity_cm_Hz05_W and, when a background is set,
-    detectivity_blip_cm_Hz05_W [cm Hz^1/2 W^-1].  Returns a Figure with one axes.
+    detectivity_blip_cm_Hz05_W [cm Hz^1/2 W^-1].  ax: an Axes to draw into (None: a new
+    figure).  Returns the Axes.
     """
-    fig = _detector_lines(ds, "plots.detector_detectivity",
+    ax = _detector_lines(ds, "plots.detector_detectivity",
                           [("detectivity_cm_Hz05_W", "D*", "C0", "-o"),
                            ("detectivity_blip_cm_Hz05_W", "D*_BLIP (background limit)", "C1", "--")],
-                          "specific detectivity D* (cm Hz½ W⁻¹)", "Detectivity against the background limit")
-    fig.axes[0].lines[0].set_markersize(3)
-    return fig
+                          "specific detectivity D* (cm Hz^(1/2) W^-1)", "Detectivity against the background limit", ax=ax)
+    ax.lines[0].set_markersize(3)
+    return ax
 
 
-def detector_responsivity(ds) -> Figure:
+def detector_responsivity(ds, ax=None):
     """Signal responsivity over a detector sweep (1000/T axis for temperature).  ds: responsivity_A_W [A/W]."""
     ds1, _ = _one_dim(ds, "plots.detector_responsivity")
     log = "responsivity_A_W" in ds1 and _spans_decades(_positive(ds1["responsivity_A_W"].values), 1.0)
     return _detector_lines(ds, "plots.detector_responsivity", [("responsivity_A_W", "R = I_signal / P_signal",
                                                                "C2", "-o")],
-                           "responsivity (A W⁻¹)", "Signal responsivity", log=log)
+                           "responsivity (A W^-1)", "Signal responsivity", log=log, ax=ax)
 
 
-def detector_nep(ds) -> Figure:
+def detector_nep(ds, ax=None):
     """Noise-equivalent power over a detector sweep, log y.  ds: noise_equivalent_power_W [W]."""
     return _detector_lines(ds, "plots.detector_nep", [("noise_equivalent_power_W", "NEP", "C3", "-o")],
-                           "noise-equivalent power (W)", "Noise-equivalent power (at detector.bandwidth_Hz)")
+                           "noise-equivalent power (W)", "Noise-equivalent power (at detector.bandwidth_Hz)", ax=ax)
 
 
 _NOISE_VARS = (("noise_total_A_Hz05", "total", "k", "-"),
@@ -781,9 +803,9 @@ _NOISE_VARS = (("noise_total_A_Hz05", "total", "k", "-"),
                ("noise_johnson_A_Hz05", "Johnson", "C4", ":"))
 
 
-def detector_noise(ds) -> Figure:
+def detector_noise(ds, ax=None):
     """Each noise current and the total over a detector sweep, log y.  ds: noise_*_A_Hz05 [A/Hz^1/2]."""
-    return _detector_lines(ds, "plots.detector_noise", _NOISE_VARS, "noise current (A Hz⁻½)", "Noise terms")
+    return _detector_lines(ds, "plots.detector_noise", _NOISE_VARS, "noise current (A Hz^(-1/2))", "Noise terms", ax=ax)
 
 
 _DARK_VARS = (("j0_thin_base_mA_cm2", "diffusion J0 (base)", "C0", "-"),
@@ -792,7 +814,7 @@ _DARK_VARS = (("j0_thin_base_mA_cm2", "diffusion J0 (base)", "C0", "-"),
               ("tunnelling_estimate_mA_cm2", "tunnelling (estimate, not added)", "0.5", ":"))
 
 
-def detector_dark_current(ds) -> Figure:
+def detector_dark_current(ds, ax=None):
     """Dark-current components over a detector sweep, log y, 1000/T axis for temperature.
 
     Photodiode: diffusion J0, depletion-region saturation current, the dark
@@ -801,33 +823,33 @@ def detector_dark_current(ds) -> Figure:
     falls with slope ~Eg, the depletion current with ~Eg/2.
     """
     if "j0_thin_base_mA_cm2" in ds:
-        return _detector_lines(ds, "plots.detector_dark_current", _DARK_VARS, "current density (mA cm⁻²)",
-                               "Dark-current components", aux=("tunnelling_estimate_mA_cm2",))
+        return _detector_lines(ds, "plots.detector_dark_current", _DARK_VARS, "current density (mA cm^-2)",
+                               "Dark-current components", aux=("tunnelling_estimate_mA_cm2",), ax=ax)
     return _detector_lines(ds, "plots.detector_dark_current",
                            [("dark_current_A", "dark (bar)", "k", "-"), ("signal_current_A", "signal", "C0", "-."),
                             ("background_current_A", "background", "C1", "--")],
-                           "current (A)", "Dark, signal and background currents")
+                           "current (A)", "Dark, signal and background currents", ax=ax)
 
 
-def spectral_response(wavelength_nm, quantum_efficiency, responsivity_A_W) -> Figure:
+def spectral_response(wavelength_nm, quantum_efficiency, responsivity_A_W, ax=None):
     """Quantum efficiency (left) and responsivity (right) against wavelength for a single point.
 
-    wavelength_nm [nm]; quantum_efficiency [-]; responsivity_A_W [A/W].  Returns a Figure.
+    wavelength_nm [nm]; quantum_efficiency [-]; responsivity_A_W [A W^-1]; ax: an Axes
+    (None: a new figure; responsivity on a twin axis).  Returns the Axes.
     """
     wl_um = np.asarray(wavelength_nm, float) * 1e-3
-    fig = _figure(6.6, 4.4)
-    ax = fig.subplots()
+    fig, ax = _one_axes(ax, 6.6, 4.4)
     ax.plot(wl_um, np.asarray(quantum_efficiency, float), color="C0", lw=2, label="quantum efficiency η")
-    ax.set_xlabel("wavelength (µm)")
+    ax.set_xlabel("wavelength (um)")
     ax.set_ylabel("quantum efficiency η", color="C0")
     ax.set_ylim(0.0, 1.05)
     ax2 = ax.twinx()
     ax2.plot(wl_um, np.asarray(responsivity_A_W, float), color="C2", lw=1.6, ls="--", label="responsivity R(λ)")
-    ax2.set_ylabel("responsivity (A W⁻¹)", color="C2")
+    ax2.set_ylabel("responsivity (A W^-1)", color="C2")
     ax2.set_ylim(bottom=0.0)
     ax.grid(True, alpha=0.3)
     ax.set_title("Spectral quantum efficiency and responsivity", fontsize=10)
-    return fig
+    return ax
 
 
 # --------------------------------------------------------------------------
@@ -835,21 +857,21 @@ def spectral_response(wavelength_nm, quantum_efficiency, responsivity_A_W) -> Fi
 # --------------------------------------------------------------------------
 
 def depth_profile(depth_cm, delta_n_cm3, generation_cm3_s, electron_qfl_eV=None, hole_qfl_eV=None,
-                  bandgap_eV=None) -> Figure:
+                  bandgap_eV=None, ax=None):
     """Stacked panels over depth: G(x), Δn(x) and, when given, the quasi-Fermi levels.
 
     depth_cm: depths from the front [cm]; delta_n_cm3: Δn(x) [cm^-3];
     generation_cm3_s: G(x) [cm^-3 s^-1]; electron_qfl_eV, hole_qfl_eV: E_Fn(x),
     E_Fp(x) above Ev [eV]; bandgap_eV: Ec - Ev [eV], drawn as band edges in the
-    level panel when given.  Returns a Figure with two or three axes sharing depth.
+    level panel when given.  ax: None (a new figure) or a
+    sequence of two or three Axes.  Returns the array of Axes (two or three, sharing depth).
     """
     d_um = np.asarray(depth_cm, dtype=float) * 1e4
     dn = np.asarray(delta_n_cm3, dtype=float)
     g = np.asarray(generation_cm3_s, dtype=float)
     with_qfl = electron_qfl_eV is not None and hole_qfl_eV is not None
     rows = 3 if with_qfl else 2
-    fig = _figure(6.6, 2.5 * rows + 0.6)
-    axes = fig.subplots(rows, 1, sharex=True)
+    fig, axes = _several_axes(ax, rows, 6.6, 2.5 * rows + 0.6, nrows=rows, sharex=True)
     use_log = _depth_axis(axes[-1], d_um, g)
     keep = d_um > 0 if use_log else np.ones(d_um.shape, bool)
     x = d_um[keep]
@@ -861,7 +883,7 @@ def depth_profile(depth_cm, delta_n_cm3, generation_cm3_s, electron_qfl_eV=None,
     if np.isfinite(gp).any():
         peak = np.nanmax(gp)
         ax.set_ylim(max(np.nanmin(gp), peak * 1e-12) / 2.0, peak * 3.0)
-    ax.set_ylabel("G (cm⁻³ s⁻¹)")
+    ax.set_ylabel("G (cm^-3 s^-1)")
     ax.set_title("Generation, excess carriers" + (" and quasi-Fermi levels" if with_qfl else "") + " against depth",
                  fontsize=10)
 
@@ -869,13 +891,13 @@ def depth_profile(depth_cm, delta_n_cm3, generation_cm3_s, electron_qfl_eV=None,
     dnp = _positive(dn)
     if _spans_decades(dnp[np.isfinite(dnp)], 1.0):
         _log_axis(ax, "y")
-        ax.set_ylabel("Δn (cm⁻³)")
+        ax.set_ylabel("Δn (cm^-3)")
     else:
         top = np.nanmax(dnp) if np.isfinite(dnp).any() else 1.0
         exp = int(np.floor(np.log10(top)))
         dnp = dnp / 10.0**exp
         ax.set_ylim(0.0, top / 10.0**exp * 1.1)
-        ax.set_ylabel(f"Δn (10{str(exp).translate(_SUPERSCRIPT)} cm⁻³)" if exp else "Δn (cm⁻³)")
+        ax.set_ylabel(f"Δn (10^{exp} cm^-3)" if exp else "Δn (cm^-3)")
     ax.plot(x, dnp[keep], color="C0", lw=2)
 
     if with_qfl:
@@ -893,15 +915,16 @@ def depth_profile(depth_cm, delta_n_cm3, generation_cm3_s, electron_qfl_eV=None,
         ax.legend(fontsize=8, loc="center left", bbox_to_anchor=(1.01, 0.5), frameon=False)
     for ax in axes:
         ax.grid(True, which="major", alpha=0.3)
-    return fig
+    return axes
 
 
 # --------------------------------------------------------------------------
 # files
 # --------------------------------------------------------------------------
 
-def save_figure(fig: Figure, path, dpi: int = 130) -> Path:
-    """Write `fig` as PNG to `path` atomically (temporary file in the same directory, then rename).
+def save_figure(fig, path, dpi: int = 130) -> Path:
+    """Write `fig` (a Figure, or the Axes a plot function returned) as PNG to `path` atomically
+    (temporary file in the same directory, then rename).
 
     Returns the final path.  An interrupted write never leaves a partial file
     under the final name.
@@ -910,5 +933,5 @@ def save_figure(fig: Figure, path, dpi: int = 130) -> Path:
     path = Path(path)
     with atomic_path(path) as tmp:
         with open(tmp, "wb") as handle:
-            fig.savefig(handle, format="png", dpi=dpi)
+            figure_of(fig).savefig(handle, format="png", dpi=dpi)
     return path

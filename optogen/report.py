@@ -72,31 +72,94 @@ def write_json(path: Path, data) -> Path:
     return write_text(path, json.dumps(data, indent=2, allow_nan=False) + "\n")
 
 
-def netcdf_ready(ds: xr.Dataset) -> xr.Dataset:
-    """A copy that the scipy (netCDF3) engine can store: bools as int8, strings as fixed bytes."""
+def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
+    """A copy of `ds` in CF encoding and the encoding to write it with.
+
+    Booleans as int8 flags (CF 1.10 section 3.5: ``flag_values`` an array of the variable's
+    type, ``flag_meanings``; xarray's ``dtype = "bool"`` marker reads them back as booleans);
+    strings as variable-length strings without units; numbers zlib-compressed with a NaN
+    fill value; coordinates without a fill value (CF 2.5.1).
+    """
     out = ds.copy()
-    for name, da in out.data_vars.items():
-        if da.dtype.kind == "b":
-            out[name] = da.astype("int8")
-            out[name].attrs.update(da.attrs, flag_values="0 1", flag_meanings="false true")
-        elif da.dtype.kind in "OU":
-            out[name] = da.astype(str)
-            out[name].attrs.update(da.attrs)
-    return out
+    encoding: dict[str, dict] = {}
+    for name, var in out.variables.items():
+        kind = var.dtype.kind
+        if name in out.dims or name in out.coords:
+            encoding[name] = {"_FillValue": None}
+        if kind == "b":
+            out[name] = var.astype(np.int8)
+            out[name].attrs.update(var.attrs)
+            out[name].attrs.update(flag_values=np.array([0, 1], dtype=np.int8), flag_meanings="false true",
+                                   dtype="bool")
+            out[name].attrs.pop("units", None)
+            encoding.setdefault(name, {})["_FillValue"] = None
+        elif kind in "OUS":
+            out[name] = var.astype(str).astype(object)
+            out[name].attrs.update(var.attrs)
+            out[name].attrs.pop("units", None)
+            encoding.setdefault(name, {}).update(dtype=str)
+        elif kind == "f" and name not in out.coords and var.ndim:
+            encoding.setdefault(name, {}).update(zlib=True, complevel=4, shuffle=True)
+    return out, encoding
 
 
 def write_netcdf(path: Path, ds: xr.Dataset) -> Path:
-    """NetCDF3 via scipy, readable by xarray.open_dataset with optogen's own dependencies."""
+    """NetCDF4 (HDF5, engine h5netcdf), CF 1.10, compressed; read with ``xarray.open_dataset``.
+
+    A Dataset already on disk as a chunked store (`optogen.pipeline.result.ChunkStore`, a
+    large sweep) is copied block by block, never loaded whole; its global attributes and any
+    variable added after the run are written into the copy.
+    """
+    source = ds.encoding.get("source")
+    if source and ds.attrs.get("optogen_storage") and Path(source).is_file():
+        with atomic_path(path) as tmp:
+            shutil.copyfile(source, tmp)
+            _update_store(tmp, ds)
+        return Path(path)
+    ready, encoding = netcdf_ready(ds)
     with atomic_path(path) as tmp:
-        netcdf_ready(ds).to_netcdf(tmp, engine="scipy")
+        ready.to_netcdf(tmp, engine="h5netcdf", encoding=encoding)
     return Path(path)
 
 
+def _update_store(path: Path, ds: xr.Dataset) -> None:
+    """Bring a copied chunked store up to `ds`: global attributes and scalar variables added later."""
+    import h5netcdf
+    with h5netcdf.File(path, "a") as f:
+        for k, v in ds.attrs.items():
+            f.attrs[k] = v
+        for name, da in ds.data_vars.items():
+            if name in f.variables or da.ndim:
+                continue
+            value = np.asarray(da.values)
+            if value.dtype.kind in "OUS":
+                import h5py
+                var = f.create_variable(name, (), h5py.string_dtype())
+                var[...] = str(value)
+            else:
+                var = f.create_variable(name, (), value.dtype)
+                var[...] = value
+            for k, v in da.attrs.items():
+                if not (value.dtype.kind in "OUS" and k == "units"):
+                    var.attrs[k] = v
+
+
+#: above this many grid points no CSV is written: the NetCDF file is the data product
+CSV_MAX_POINTS = 1_000_000
+
+#: above this many grid points no result.json is written
+JSON_MAX_POINTS = 10_000
+
+
 def write_csv(path: Path, ds: xr.Dataset) -> Path:
-    """Tidy CSV: one row per grid point, one column per quantity (unit in the name)."""
-    df = ds.to_dataframe().reset_index() if ds.sizes else ds.expand_dims("point").to_dataframe().reset_index(drop=True)
+    """Tidy CSV: one row per grid point, one column per swept key (underscore name) then per
+    quantity (unit in the name); NaN as an empty cell.  Built from whole columns
+    (`optogen.pipeline.result.tidy_columns`) and written by pandas' C writer in blocks of rows."""
+    import pandas as pd
+    from .pipeline.result import tidy_columns
+    cols = tidy_columns(ds)
     with atomic_path(path) as tmp:
-        df.to_csv(tmp, index=False, float_format="%.10g")
+        pd.DataFrame(cols, copy=False).to_csv(tmp, index=False, float_format="%.10g", chunksize=100_000)
     return Path(path)
 
 
@@ -157,22 +220,22 @@ def _f(v, fmt=".4g", unit=""):
 
 def summary(res) -> str:
     """A readable summary: dark and illuminated states side by side."""
-    d = res.to_dict()
     sc = res.scenario
-    lines = [f"optogen {d['version']}: {d['title']}"]
-    lines.append(_absorber_line(sc, d))
-    if res.is_sweep:
+    from ._version import __version__
+    lines = [f"optogen {__version__}: {sc.title}"]
+    lines.append(_absorber_line(sc))
+    if res.is_sweep:                       # from the arrays: no per-point Python objects
         lines += _sweep_summary(res)
     else:
-        lines += _point_summary(d)
-    for w in d.get("warnings", []):
+        lines += _point_summary(res.to_dict())
+    for w in res.warnings:
         lines.append(f"WARNING: {w}")
     lines.append("")
     lines += [f"Note: {c}" for c in cautions(res)]
     return "\n".join(lines)
 
 
-def _absorber_line(sc, d) -> str:
+def _absorber_line(sc) -> str:
     ab = sc.data["absorber"]
     parts = [str(ab.get("material") or (ab.get("custom") or {}).get("name", "custom material"))]
     if "thickness_um" in ab:
@@ -181,7 +244,7 @@ def _absorber_line(sc, d) -> str:
     if "resistivity_ohm_cm" in ab:
         parts.append(f"{ab['resistivity_ohm_cm']:g} ohm cm {ab['dopant']}-type")
     else:
-        parts.append(f"N_D = {ab.get('donors_cm3', 0):.3g} cm-3, N_A = {ab.get('acceptors_cm3', 0):.3g} cm-3")
+        parts.append(f"N_D = {ab.get('donors_cm3', 0):.3g} cm^-3, N_A = {ab.get('acceptors_cm3', 0):.3g} cm^-3")
     return "Absorber: " + ", ".join(parts)
 
 
@@ -191,8 +254,8 @@ def _point_summary(d) -> list[str]:
     rows = [("", "dark", "illuminated")]
     def row(label, dark, light, fmt=".4g"):
         rows.append((label, _f(dark, fmt), _f(light, fmt)))
-    row("n (cm-3)", eq["n0_cm3"], ss and ss["n_cm3"])
-    row("p (cm-3)", eq["p0_cm3"], ss and ss["p_cm3"])
+    row("n (cm^-3)", eq["n0_cm3"], ss and ss["n_cm3"])
+    row("p (cm^-3)", eq["p0_cm3"], ss and ss["p_cm3"])
     row("n*p / n_i,eff^2", 1.0 if eq["n0_cm3"] else None, ss and ss["np_over_ni2"])
     row("E_F / E_Fn (eV above Ev)", eq["fermi_level_eV"], ss and ss["electron_qfl_eV"], ".4f")
     row("E_F / E_Fp (eV above Ev)", eq["fermi_level_eV"], ss and ss["hole_qfl_eV"], ".4f")
@@ -200,19 +263,19 @@ def _point_summary(d) -> list[str]:
     for r in rows:
         out.append(f"  {r[0]:<{w0}}  {r[1]:>14}  {r[2]:>14}")
     out.append("")
-    out.append(f"  n_i = {_f(eq['ni_cm3'])} cm-3, n_i,eff = {_f(eq['ni_eff_cm3'])} cm-3, "
+    out.append(f"  n_i = {_f(eq['ni_cm3'])} cm^-3, n_i,eff = {_f(eq['ni_eff_cm3'])} cm^-3, "
                f"Eg = {_f(eq['bandgap_eV'], '.4f')} eV, ionised N_D+ = {_f(eq['ionised_donors_cm3'])}, "
-               f"N_A- = {_f(eq['ionised_acceptors_cm3'])} cm-3")
+               f"N_A- = {_f(eq['ionised_acceptors_cm3'])} cm^-3")
     if "light" in d:
         li, g = d["light"], d["generation"]
-        out.append(f"  light: {_f(li['irradiance_W_m2'])} W/m2, {_f(li['photon_flux_cm2_s'])} photons/cm2/s; "
-                   f"G = {_f(g['average_cm3_s'])} cm-3/s, J_gen = {_f(g['photocurrent_mA_cm2'])} mA/cm2, "
+        out.append(f"  light: {_f(li['irradiance_W_m2'])} W m^-2, photon flux {_f(li['photon_flux_cm2_s'])} cm^-2 s^-1; "
+                   f"G = {_f(g['average_cm3_s'])} cm^-3 s^-1, J_gen = {_f(g['photocurrent_mA_cm2'])} mA cm^-2, "
                    f"absorbed {_f(g['absorbed_fraction'], '.3f')}")
     if g_bg := (d.get("generation") or {}).get("background_average_cm3_s"):
-        out.append(f"  background: G = {_f(g_bg)} cm-3/s")
+        out.append(f"  background: G = {_f(g_bg)} cm^-3 s^-1")
     if ss:
         t = ss["tau_s"]
-        out.append(f"  delta n = {_f(ss['delta_n_cm3'])} cm-3 (injection ratio {_f(ss['injection_ratio'], '.3g')}), "
+        out.append(f"  delta n = {_f(ss['delta_n_cm3'])} cm^-3 (injection ratio {_f(ss['injection_ratio'], '.3g')}), "
                    f"splitting = {_f(ss['splitting_eV'], '.4f')} eV")
         out.append(f"  implied Voc = {_f(ss['implied_voc_V'], '.4f')} V, implied FF = {_f(ss['implied_ff'], '.4f')}")
         out.append(f"  lifetime: tau_eff = {_f(ss['tau_eff_s'], '.4g')} s; SRH {_f(t['srh'], '.3g')} s, "
@@ -224,14 +287,14 @@ def _point_summary(d) -> list[str]:
             out.append(f"  photoconductance = {_f(ss['photoconductance_S'], '.4g')} S")
     if "implied_jv" in d:
         jv = d["implied_jv"]
-        out.append(f"  implied J-V: Vmp = {_f(jv['vmp_V'], '.4f')} V, Jmp = {_f(jv['jmp_mA_cm2'], '.4g')} mA/cm2, "
+        out.append(f"  implied J-V: Vmp = {_f(jv['vmp_V'], '.4f')} V, Jmp = {_f(jv['jmp_mA_cm2'], '.4g')} mA cm^-2, "
                    f"implied efficiency = {_f(jv['efficiency'], '.4f')}")
     if "profile" in d:
         pr = d["profile"]
         out.append("")
         out.append(f"  depth-resolved ({pr['plane']} plane for the levels above): delta n front "
                    f"{_f(pr['front_delta_n_cm3'])}, rear {_f(pr['rear_delta_n_cm3'])}, average "
-                   f"{_f(pr['average_delta_n_cm3'])} cm-3, min/max {_f(pr['uniformity'], '.3f')}")
+                   f"{_f(pr['average_delta_n_cm3'])} cm^-3, min/max {_f(pr['uniformity'], '.3f')}")
         out.append(f"  uniform approximation error: implied Voc {_f(pr['uniform_error_implied_voc_mV'], '+.2f')} mV, "
                    f"average delta n {_f(100 * pr['uniform_error_average_delta_n'], '+.1f')} %")
     if "detector" in d:
@@ -242,10 +305,10 @@ def _point_summary(d) -> list[str]:
 _DETECTOR_HEADLINE = (
     ("currents (A)", (("signal", "signal_current_A"), ("background", "background_current_A"),
                       ("dark", "dark_current_A"))),
-    ("noise (A/Hz^1/2)", (("signal", "noise_signal_A_Hz05"), ("background", "noise_background_A_Hz05"),
+    ("noise (A Hz^(-1/2))", (("signal", "noise_signal_A_Hz05"), ("background", "noise_background_A_Hz05"),
                           ("thermal", "noise_thermal_A_Hz05"), ("Johnson", "noise_johnson_A_Hz05"),
                           ("total", "noise_total_A_Hz05"))),
-    ("detectivity (cm Hz^1/2/W)", (("D*", "detectivity_cm_Hz05_W"), ("D*_BLIP", "detectivity_blip_cm_Hz05_W"),
+    ("detectivity (cm Hz^(1/2) W^-1)", (("D*", "detectivity_cm_Hz05_W"), ("D*_BLIP", "detectivity_blip_cm_Hz05_W"),
                                    ("D*/D*_BLIP", "detectivity_over_blip"))),
 )
 CAUTION_TUNNELLING = ("Tunnelling: the band-to-band tunnelling estimate exceeds the dark current at this "
@@ -253,7 +316,7 @@ CAUTION_TUNNELLING = ("Tunnelling: the band-to-band tunnelling estimate exceeds 
                       "leave it out and are then too optimistic.")
 CAUTION_HIGH_FIELD = ("High field: at this photoconductor bias the minority carriers are swept to a contact "
                       "within their lifetime (drift length mu E tau above the electrode spacing) or drift "
-                      "faster than about 1e7 cm/s; the gain tau/t_tr, responsivity and D* assume neither and "
+                      "faster than about 1e7 cm s^-1; the gain tau/t_tr, responsivity and D* assume neither and "
                       "are then too high.")
 
 
@@ -272,22 +335,26 @@ def _detector_summary(det) -> list[str]:
     shown.add("background_limited")
     for k, v in det.items():
         if k not in shown:
-            out.append(f"    {axis_label(k):<42} {_f(v)}")
+                    out.append(f"    {axis_label(k):<42} {_f(v)}")
     return out
 
 
 def _sweep_summary(res) -> list[str]:
     ds = res.dataset
-    out = ["", "Sweep: " + " x ".join(f"{k} ({ds.sizes[k]} values, {float(ds[k].min()):.4g} .. "
-                                        f"{float(ds[k].max()):.4g})" for k in ds.dims)]
+    out = ["", "Sweep: " + " x ".join(f"{ds[k].attrs.get('scenario_key', k)} ({ds.sizes[k]} values, "
+                                        f"{float(ds[k].min()):.4g} .. {float(ds[k].max()):.4g}"
+                                        f"{' ' + ds[k].attrs['units'] if ds[k].attrs.get('units', '1') != '1' else ''})"
+                                        for k in ds.dims)]
     for name in ("implied_voc_V", "tau_eff_s", "delta_n_cm3", "np_over_ni2", "n0_cm3", "p0_cm3",
                  "responsivity_A_W", "photoconductive_gain", "conductivity_contrast", "minority_ratio"):
         if name in ds:
-            v = ds[name].values.astype(float)
+            v = np.asarray(ds[name].values, dtype=float)
+            units = ds[name].attrs.get("units", "1")
+            units = "" if units == "1" else units
             if np.isnan(v).all():           # e.g. a responsivity without a source: null at every point
                 out.append(f"  {name:<16} {'-':>12}")
                 continue
-            out.append(f"  {name:<16} {np.nanmin(v):>12.4g} .. {np.nanmax(v):<12.4g}")
+            out.append(f"  {name:<16} {np.nanmin(v):>12.4g} .. {np.nanmax(v):<12.4g} {units}".rstrip())
     if "background_limit_note" in ds.attrs:
         out.append(f"  background limit: {ds.attrs['background_limit_note']}")
     if len(ds.dims) == 1 and ds.sizes[next(iter(ds.dims))] <= MAX_TABLE_ROWS:
@@ -300,7 +367,7 @@ def _sweep_summary(res) -> list[str]:
                                      "background_limited"], "detector", units="units in the column heads")
             out += _point_table(ds, ["noise_signal_A_Hz05", "noise_background_A_Hz05", "noise_thermal_A_Hz05",
                                      "noise_johnson_A_Hz05", "noise_total_A_Hz05"], "detector noise",
-                                units="A/Hz^1/2")
+                                units="A Hz^(-1/2)")
     return out
 
 
@@ -311,20 +378,20 @@ _SHORT = {"n0_cm3": "n0", "n_cm3": "n", "p0_cm3": "p0", "p_cm3": "p", "np_over_n
           "implied_voc_V": "iVoc (V)", "tau_eff_s": "tau_eff (s)", "minority_ratio": "minority x",
           "thermal_generation_cm3_s": "G_thermal", "optical_generation_cm3_s": "G_light",
           "background_generation_cm3_s": "G_backgr.", "background_limited": "bg-limited",
-          "responsivity_A_W": "R (A/W)", "detectivity_cm_Hz05_W": "D* (Jones)",
+          "responsivity_A_W": "R (A W^-1)", "detectivity_cm_Hz05_W": "D* (cm Hz^(1/2) W^-1)",
           "signal_current_A": "I_sig (A)", "background_current_A": "I_bg (A)", "dark_current_A": "I_dark (A)",
-          "noise_total_A_Hz05": "i_n (A/Hz^1/2)", "detectivity_blip_cm_Hz05_W": "D*_BLIP",
+          "noise_total_A_Hz05": "i_n (A Hz^(-1/2))", "detectivity_blip_cm_Hz05_W": "D*_BLIP",
           "detectivity_over_blip": "D*/BLIP", "high_field_caution": "high field", "noise_signal_A_Hz05": "signal", "noise_background_A_Hz05": "background",
           "noise_thermal_A_Hz05": "thermal", "noise_johnson_A_Hz05": "Johnson"}
 
 
-def _point_table(ds, names, title, units="densities cm-3, rates cm-3 s-1") -> list[str]:
+def _point_table(ds, names, title, units="densities cm^-3, rates cm^-3 s^-1") -> list[str]:
     """One row per point of a one-dimensional sweep, `units` named after the title."""
     dim = next(iter(ds.dims))
     names = [n for n in names if n in ds]
     if not names:
         return []
-    head = [dim] + [_SHORT.get(n, n) for n in names]
+    head = [ds[dim].attrs.get("scenario_key", dim)] + [_SHORT.get(n, n) for n in names]
     rows = [[_f(float(ds[dim].values[i]))] + [_f(ds[n].values[i].item()) for n in names]
             for i in range(ds.sizes[dim])]
     w = [max(len(r[j]) for r in rows + [head]) for j in range(len(head))]
@@ -368,10 +435,10 @@ def _write_files(res, outdir: Path) -> list[Path]:
     """Write every file of a result into `outdir` (the staging folder of `write_all`)."""
     from . import plots
     ds = res.dataset
-    written = [write_json(outdir / "result.json", res.to_dict()) if not res.is_sweep or ds["n0_cm3"].size <= 10_000
-               else None,
+    n = res.scenario.n_points
+    written = [write_json(outdir / "result.json", res.to_dict()) if n <= JSON_MAX_POINTS else None,
                write_netcdf(outdir / "result.nc", ds),
-               write_csv(outdir / "result.csv", ds)]
+               write_csv(outdir / "result.csv", ds) if n <= CSV_MAX_POINTS else None]
     figs: list[tuple[str, object]] = []
     if res.is_sweep:
         # a swept key with one value counts as a dimension only if nothing else is swept
@@ -382,7 +449,7 @@ def _write_files(res, outdir: Path) -> list[Path]:
             figs.append(("sweep_map.png", plots.sweep_map(ds)))
         if len(dims) == 1 and "thermal_generation_cm3_s" in ds:
             crossing = ds.attrs.get("background_limit_temperature_K")
-            crossing = crossing if crossing is not None and np.isfinite(crossing) and "temperature" in dims[0] else None
+            crossing = crossing if crossing is not None and np.isfinite(crossing) and plots._is_temperature(dims[0]) else None
             figs += [("detector_densities.png", plots.detector_densities(ds)),
                      ("detector_generation.png", plots.detector_generation(ds, crossing=crossing))]
             if "conductivity_contrast" in ds:

@@ -95,30 +95,266 @@ class Scenario:
     def n_points(self) -> int:
         return int(np.prod([a.values.size for a in self.sweep])) if self.sweep else 1
 
+    def to_toml(self) -> str:
+        """The scenario as it runs (after ``--set`` / `with_values`), as TOML text.
+
+        Every field of `data` and the sweep axes as explicit value lists, so that
+        ``load_scenario(sc.to_toml(), base_dir=sc.base_dir)`` gives the same scenario.
+        """
+        data = {k: v for k, v in self.data.items() if k in ("title", "description")}
+        data.update({k: v for k, v in self.data.items() if k not in ("title", "description")})
+        if self.sweep:
+            data["sweep"] = {a.key: a.values.tolist() for a in self.sweep}
+        return toml_text(data)
+
+    def __repr__(self) -> str:
+        sweep = " x ".join(f"{a.key} ({a.values.size})" for a in self.sweep)
+        return (f"Scenario({self.title!r}, sections: {', '.join(k for k in self.data if k in SECTIONS)}; "
+                + (f"sweep {sweep} = {self.n_points} points" if sweep else "single point")
+                + (f"; from {self.path}" if self.path != "<text>" else "") + ")")
+
+    def _repr_html_(self) -> str:
+        import html
+        rows = "".join(f"<tr><td><code>{html.escape(k)}</code></td><td>{html.escape(_short(v))}</td></tr>"
+                       for k, v in _flat_items(self.data))
+        rows += "".join(f"<tr><td><code>sweep: {html.escape(a.key)}</code></td><td>{a.values.size} values, "
+                        f"{html.escape(_short(a.values.tolist()))}</td></tr>" for a in self.sweep)
+        return (f"<div><b>optogen Scenario</b>: {html.escape(self.title)} ({self.n_points} point"
+                f"{'s' if self.n_points != 1 else ''})<table>{rows}</table></div>")
+
 
 def unit_of(key: str) -> str:
-    """The unit encoded in a key's suffix ("absorber.temperature_K" -> "K")."""
+    """The unit encoded in a key's suffix ("absorber.temperature_K" -> "K", "delta_n_cm3" -> "cm^-3").
+
+    Works on dotted scenario keys and on Dataset names ("light_suns" -> "kW m^-2"); "1" for a
+    name without a unit suffix (a dimensionless quantity).
+    """
     name = key.split(".")[-1]
     for suffix in _SUFFIX_ORDER:
         if name.endswith("_" + suffix) or name == suffix:
-            return UNIT_SUFFIXES[suffix][0]
+            return UNIT_SUFFIXES[suffix]
     return "1"
 
 
-#: key suffix -> (unit for file attributes, unit for people); the longest matching suffix wins
-UNIT_SUFFIXES: dict[str, tuple[str, str]] = {
-    "cm3_s": ("cm-3 s-1", "cm⁻³ s⁻¹"), "cm2_s": ("cm-2 s-1", "cm⁻² s⁻¹"),
-    "W_m2_nm": ("W m-2 nm-1", "W m⁻² nm⁻¹"), "mA_cm2": ("mA cm-2", "mA cm⁻²"),
-    "fA_cm2": ("fA cm-2", "fA cm⁻²"), "W_m2": ("W m-2", "W m⁻²"), "cm_s": ("cm s-1", "cm s⁻¹"),
-    "ohm_cm": ("ohm cm", "Ω cm"), "cm2_Vs": ("cm2 V-1 s-1", "cm² V⁻¹ s⁻¹"), "S_cm": ("S cm-1", "S cm⁻¹"),
-    "cm_Hz05_W": ("cm Hz1/2 W-1", "cm Hz½ W⁻¹"), "mW_cm2": ("mW cm-2", "mW cm⁻²"),
-    "A_W": ("A W-1", "A W⁻¹"), "cm3": ("cm-3", "cm⁻³"), "cm2": ("cm2", "cm²"), "um": ("um", "µm"),
-    "nm": ("nm", "nm"), "mm": ("mm", "mm"), "cm": ("cm", "cm"), "eV": ("eV", "eV"), "mV": ("mV", "mV"),
-    "K": ("K", "K"), "V": ("V", "V"), "s": ("s", "s"), "W": ("W", "W"), "A": ("A", "A"), "S": ("S", "S"),
-    "deg": ("degree", "°"), "Hz": ("Hz", "Hz"), "suns": ("suns", "suns"),
-    "A_Hz05": ("A Hz-1/2", "A Hz⁻½"), "ohm_cm2": ("ohm cm2", "Ω cm²"),
+#: key suffix -> unit, in the one spelling of files, summary, plots and docs: UDUNITS-2 / CF
+#: symbols, a space between factors, a caret before every exponent, parentheses around a
+#: fractional one ("cm^-3 s^-1", "A Hz^(-1/2)").  Every entry parses to the right dimension in
+#: pint's default registry, and all but the two half-power units in cf-units (UDUNITS-2 has no
+#: fractional exponents: tests/test_units.py).  "suns" is stored as kW m^-2: 1 sun is 1000 W m^-2
+#: of the spectrum's shape (README, Light), so a level in suns is that irradiance in kW m^-2.
+#: The longest matching suffix wins.
+UNIT_SUFFIXES: dict[str, str] = {
+    "cm3_s": "cm^-3 s^-1", "cm2_s": "cm^-2 s^-1", "W_m2_nm": "W m^-2 nm^-1", "mA_cm2": "mA cm^-2",
+    "fA_cm2": "fA cm^-2", "W_m2": "W m^-2", "cm_s": "cm s^-1", "ohm_cm": "ohm cm", "cm2_Vs": "cm^2 V^-1 s^-1",
+    "S_cm": "S cm^-1", "cm_Hz05_W": "cm Hz^(1/2) W^-1", "mW_cm2": "mW cm^-2", "A_W": "A W^-1",
+    "cm3": "cm^-3", "cm2": "cm^2", "um": "um", "nm": "nm", "mm": "mm", "cm": "cm", "eV": "eV", "mV": "mV",
+    "K": "K", "V": "V", "s": "s", "W": "W", "A": "A", "S": "S", "deg": "degree", "Hz": "Hz",
+    "suns": "kW m^-2", "A_Hz05": "A Hz^(-1/2)", "ohm_cm2": "ohm cm^2",
 }
 _SUFFIX_ORDER = sorted(UNIT_SUFFIXES, key=len, reverse=True)
+
+#: units that UDUNITS-2 (cf-units, the CF checkers) cannot express: it has no fractional
+#: exponents (cf_units.Unit("Hz").root(2) is refused as meaningless); pint reads them right
+HALF_POWER_UNITS = ("A Hz^(-1/2)", "cm Hz^(1/2) W^-1")
+
+
+def dim_name(key: str) -> str:
+    """The Dataset / NetCDF name of a swept key: dots become underscores ("light.suns" -> "light_suns").
+
+    CF names hold letters, digits and underscores only (CF 1.10 section 2.3); the dotted key is
+    kept in the coordinate's ``scenario_key`` attribute.
+    """
+    return str(key).replace(".", "_")
+
+
+#: the human name of every quantity (without its unit), shared by plot labels and the
+#: ``long_name`` attributes of the files; keys are Dataset variable names and dotted scenario keys
+LONG_NAMES: dict[str, str] = {
+    # swept scenario keys
+    "light.suns": "incident irradiance in suns",
+    "light.irradiance_W_m2": "incident irradiance",
+    "light.photon_flux_cm2_s": "incident photon flux",
+    "light.power_W": "light power",
+    "light.wavelength_nm": "laser wavelength",
+    "absorber.temperature_K": "temperature",
+    "absorber.thickness_um": "absorber thickness",
+    "absorber.donors_cm3": "donor density",
+    "absorber.acceptors_cm3": "acceptor density",
+    "absorber.resistivity_ohm_cm": "resistivity",
+    "background.temperature_K": "background temperature",
+    "solver.depth_resolved": "depth-resolved run",
+    # equilibrium
+    "n0_cm3": "dark electron density n0", "p0_cm3": "dark hole density p0",
+    "ni_cm3": "intrinsic density n_i", "ni_eff_cm3": "effective intrinsic density n_i,eff",
+    "fermi_level_eV": "Fermi level above Ev", "bandgap_eV": "band gap Eg(T)",
+    "ionised_donors_cm3": "ionised donor density", "ionised_acceptors_cm3": "ionised acceptor density",
+    # light and generation
+    "irradiance_W_m2": "incident irradiance", "photon_flux_cm2_s": "incident photon flux",
+    "generation_average_cm3_s": "average generation rate", "photocurrent_mA_cm2": "photogenerated current density",
+    "absorbed_fraction": "absorbed fraction of incident photons",
+    "generation_background_average_cm3_s": "average generation rate of the background",
+    # steady state
+    "delta_n_cm3": "excess carrier density Δn", "delta_p_cm3": "excess hole density Δp",
+    "n_cm3": "electron density n", "p_cm3": "hole density p", "np_over_ni2": "n·p / n_i,eff^2",
+    "log10_np_over_ni2": "log10 of n·p / n_i,eff^2", "splitting_eV": "quasi-Fermi level splitting",
+    "implied_voc_V": "implied Voc", "implied_ff": "implied fill factor", "tau_eff_s": "effective lifetime",
+    "tau_srh_s": "SRH lifetime", "tau_radiative_s": "radiative lifetime", "tau_auger_s": "Auger lifetime",
+    "tau_surface_s": "surface lifetime", "electron_qfl_eV": "electron quasi-Fermi level above Ev",
+    "hole_qfl_eV": "hole quasi-Fermi level above Ev", "injection_ratio": "injection ratio Δn / max(n0, p0)",
+    "limiting_mechanism": "limiting recombination mechanism", "degenerate": "degenerate statistics at the point",
+    "converged": "steady state converged", "photoconductance_S": "sheet photoconductance",
+    # implied J-V
+    "jv_voc_V": "implied J-V open-circuit voltage", "jv_vmp_V": "implied J-V maximum-power voltage",
+    "jv_jmp_mA_cm2": "implied J-V maximum-power current density", "jv_ff": "implied J-V fill factor",
+    "jv_pmax_mW_cm2": "implied J-V maximum power density", "jv_efficiency": "implied efficiency",
+    # detector
+    "signal_current_A": "signal current", "background_current_A": "background current",
+    "dark_current_A": "dark current", "photocurrent_A": "photocurrent",
+    "noise_signal_A_Hz05": "signal photon noise current", "noise_background_A_Hz05": "background photon noise current",
+    "noise_thermal_A_Hz05": "thermal noise current", "noise_johnson_A_Hz05": "Johnson noise current",
+    "noise_total_A_Hz05": "total noise current", "responsivity_A_W": "responsivity",
+    "detectivity_cm_Hz05_W": "specific detectivity D*", "detectivity_blip_cm_Hz05_W": "background-limited D*_BLIP",
+    "detectivity_over_blip": "D* / D*_BLIP", "noise_equivalent_power_W": "noise-equivalent power",
+    "background_limited": "background-limited", "conductivity_contrast": "conductivity contrast Δσ/σ0",
+    "minority_ratio": "illuminated / dark minority density", "photoconductive_gain": "photoconductive gain",
+    "thermal_generation_cm3_s": "thermal generation rate", "optical_generation_cm3_s": "optical generation rate",
+    "background_generation_cm3_s": "background generation rate",
+    "background_absorbed_flux_cm2_s": "absorbed background photon flux",
+    "sigma_dark_S_cm": "dark conductivity", "sigma_light_S_cm": "illuminated conductivity",
+    "transit_time_s": "transit time", "bulk_lifetime_s": "bulk lifetime", "generation_lifetime_s": "generation lifetime",
+    "quantum_efficiency": "quantum efficiency", "mode": "detector mode",
+    "high_field_caution": "high-field caution", "tunnelling_may_dominate": "tunnelling may dominate",
+    "built_in_potential_V": "built-in potential", "depletion_width_um": "depletion width",
+    "forward_bias_limit_V": "forward-bias limit", "r0a_ohm_cm2": "zero-bias resistance-area product R0A",
+    "dark_current_density_mA_cm2": "dark current density at the bias",
+    "dark_current_density_thick_base_mA_cm2": "dark current density (thick base)",
+    "diffusion_current_density_mA_cm2": "diffusion current density",
+    "depletion_current_density_mA_cm2": "depletion-region current density",
+    "j0_thin_base_mA_cm2": "diffusion J0 (thin base)", "j0_thick_base_mA_cm2": "diffusion J0 (thick base)",
+    "j0_depletion_mA_cm2": "depletion-region saturation current density",
+    "tunnelling_estimate_mA_cm2": "tunnelling current density estimate",
+    "background_limit_temperature_K": "background-limit temperature", "background_limit_note": "background-limit note",
+    # depth profile
+    "plane": "plane of the reported levels", "front_delta_n_cm3": "Δn at the front",
+    "rear_delta_n_cm3": "Δn at the rear", "average_delta_n_cm3": "depth-average Δn",
+    "uniformity": "min/max of Δn(x)", "uniform_implied_voc_V": "implied Voc of the uniform approximation",
+    "uniform_error_implied_voc_mV": "uniform-approximation error of implied Voc",
+    "uniform_error_average_delta_n": "relative uniform-approximation error of average Δn",
+    "nodes": "depth mesh nodes", "profile_converged": "depth profile converged",
+    # curves
+    "depth_cm": "depth from the front", "depth_um": "depth from the front", "generation_cm3_s": "generation rate",
+    "voltage_V": "implied voltage", "current_mA_cm2": "current density", "wavelength_nm": "wavelength",
+}
+
+
+def long_name(name: str) -> str:
+    """The human name of a Dataset variable, coordinate or dotted key, without its unit.
+
+    From `LONG_NAMES` (a dotted key is also found by its underscore name); otherwise the name
+    with its unit suffix dropped and underscores as spaces ("absorber.donors_cm3" ->
+    "absorber donors").
+    """
+    name = str(name)
+    if name in LONG_NAMES:
+        return LONG_NAMES[name]
+    dotted = {dim_name(k): k for k in LONG_NAMES if "." in k}
+    if name in dotted:
+        return LONG_NAMES[dotted[name]]
+    stem = name
+    for suffix in _SUFFIX_ORDER:
+        if name.endswith("_" + suffix) and len(name) > len(suffix) + 1:
+            stem = name[: -len(suffix) - 1]
+            break
+    return " ".join(p.replace("_", " ") for p in stem.split("."))
+
+
+def label(name: str, units: str | None = None) -> str:
+    """"long name (unit)" for axes and tables; the unit from `units` or the name's suffix (none if "1")."""
+    units = unit_of(name) if units is None else str(units)
+    return f"{long_name(name)} ({units})" if units not in ("1", "") else long_name(name)
+
+
+def _short(v, width: int = 60) -> str:
+    text = repr(v) if not isinstance(v, str) else v
+    return text if len(text) <= width else text[: width - 3] + "..."
+
+
+def _flat_items(data, prefix=""):
+    for k, v in data.items():
+        if isinstance(v, Mapping):
+            yield from _flat_items(v, f"{prefix}{k}.")
+        else:
+            yield prefix + k, v
+
+
+def _toml_key(k: str) -> str:
+    return k if k and all(c.isalnum() or c in "_-" for c in k) else '"' + _toml_str_body(k) + '"'
+
+
+def _toml_str_body(s: str) -> str:
+    out = []
+    for ch in s:
+        if ch in '"\\':
+            out.append("\\" + ch)
+        elif ch == "\n":
+            out.append("\\n")
+        elif ch == "\t":
+            out.append("\\t")
+        elif ord(ch) < 0x20 or ord(ch) == 0x7F:
+            out.append(f"\\u{ord(ch):04x}")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def _toml_value(v) -> str:
+    if isinstance(v, (bool, np.bool_)):
+        return "true" if v else "false"
+    if isinstance(v, (int, np.integer)):
+        return str(int(v))
+    if isinstance(v, (float, np.floating)):
+        v = float(v)
+        if math.isnan(v):
+            return "nan"
+        if math.isinf(v):
+            return "inf" if v > 0 else "-inf"
+        text = repr(v)
+        return text if any(c in text for c in ".en") else text + ".0"
+    if isinstance(v, str):
+        return '"' + _toml_str_body(v) + '"'
+    if isinstance(v, (list, tuple, np.ndarray)):
+        return "[" + ", ".join(_toml_value(x) for x in v) + "]"
+    if isinstance(v, Mapping):
+        return "{ " + ", ".join(f"{_toml_key(str(k))} = {_toml_value(x)}" for k, x in v.items()) + " }"
+    raise TypeError(f"no TOML form for {type(v).__name__}")
+
+
+def toml_text(data: Mapping[str, Any]) -> str:
+    """TOML text of a table as tomllib returns it (tables, arrays of tables, strings, numbers,
+    booleans, lists); ``tomllib.loads(toml_text(d)) == d`` for such a table."""
+    lines: list[str] = []
+
+    def is_table_list(v):
+        return isinstance(v, list) and v and all(isinstance(x, Mapping) for x in v)
+
+    def emit(table: Mapping, path: list[str]):
+        scalars = [(k, v) for k, v in table.items() if not isinstance(v, Mapping) and not is_table_list(v)]
+        for k, v in scalars:
+            lines.append(f"{_toml_key(str(k))} = {_toml_value(v)}")
+        for k, v in table.items():
+            sub = path + [_toml_key(str(k))]
+            if isinstance(v, Mapping):
+                lines.append("")
+                lines.append("[" + ".".join(sub) + "]")
+                emit(v, sub)
+            elif is_table_list(v):
+                for item in v:
+                    lines.append("")
+                    lines.append("[[" + ".".join(sub) + "]]")
+                    emit(item, sub)
+
+    emit(data, [])
+    return "\n".join(lines).lstrip("\n") + "\n"
 
 
 def _set_dotted(data: dict, key: str, value) -> None:

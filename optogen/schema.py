@@ -188,9 +188,9 @@ _KEYS: list[Key] = [
        THICKNESS_MIN_um, THICKNESS_MAX_um, consumer=_R, doc="absorber thickness W"),
     _k("absorber.temperature_K", _NUM, "K", 300.0, **_DOMAIN_T, sweep=FAST, consumer="pipeline.evaluate",
        doc="absorber temperature"),
-    _k("absorber.donors_cm3", _NUM, "cm-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="pipeline.setup.doping_of",
+    _k("absorber.donors_cm3", _NUM, "cm^-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="pipeline.setup.doping_of",
        doc="donor density"),
-    _k("absorber.acceptors_cm3", _NUM, "cm-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="pipeline.setup.doping_of",
+    _k("absorber.acceptors_cm3", _NUM, "cm^-3", 0.0, 0.0, DOPING_MAX_cm3, sweep=FAST, consumer="pipeline.setup.doping_of",
        doc="acceptor density"),
     _k("absorber.resistivity_ohm_cm", _NUM, "ohm cm", None, 1e-6, 1e9, sweep=FAST, consumer="pipeline.setup.doping_of",
        doc="300 K resistivity of an n- or p-type wafer, with dopant, instead of the densities"),
@@ -213,18 +213,18 @@ _KEYS: list[Key] = [
     *[_k(f"absorber.custom.{n}", _NUM, u, None, lo, hi, low_open=lo_open, consumer="materials.validate", doc=d)
       for n, u, lo, lo_open, hi, d in (
           ("eg0_eV", "eV", 0.0, True, 10.0, "band gap at 0 K (Varshni)"),
-          ("varshni_alpha_eV_K", "eV/K", 0.0, False, 0.1, "Varshni alpha"),
+          ("varshni_alpha_eV_K", "eV K^-1", 0.0, False, 0.1, "Varshni alpha"),
           ("varshni_beta_K", "K", 0.0, True, 1e4, "Varshni beta"),
           ("me_dos_m0", "m0", 0.0, True, 100.0, "electron density-of-states mass"),
           ("mh_dos_m0", "m0", 0.0, True, 100.0, "hole density-of-states mass"),
           ("permittivity", "-", 0.0, True, 1e3, "static relative permittivity"),
-          ("vth_e_300K_cm_s", "cm/s", 0.0, True, 1e9, "electron thermal velocity at 300 K"),
-          ("vth_h_300K_cm_s", "cm/s", 0.0, True, 1e9, "hole thermal velocity at 300 K"),
-          ("radiative_B_cm3_s", "cm3/s", 0.0, False, 1e-6, "radiative coefficient at 300 K"),
-          ("auger_Cn_cm6_s", "cm6/s", 0.0, False, 1e-15, "electron Auger coefficient at 300 K"),
-          ("auger_Cp_cm6_s", "cm6/s", 0.0, False, 1e-15, "hole Auger coefficient at 300 K"),
+          ("vth_e_300K_cm_s", "cm s^-1", 0.0, True, 1e9, "electron thermal velocity at 300 K"),
+          ("vth_h_300K_cm_s", "cm s^-1", 0.0, True, 1e9, "hole thermal velocity at 300 K"),
+          ("radiative_B_cm3_s", "cm^3 s^-1", 0.0, False, 1e-6, "radiative coefficient at 300 K"),
+          ("auger_Cn_cm6_s", "cm^6 s^-1", 0.0, False, 1e-15, "electron Auger coefficient at 300 K"),
+          ("auger_Cp_cm6_s", "cm^6 s^-1", 0.0, False, 1e-15, "hole Auger coefficient at 300 K"),
           ("refractive_index", "-", 1.0, False, 20.0, "constant real index"),
-          ("edge_A_cm1_eV05", "cm-1 eV-1/2", 0.0, False, 1e8, "parametric edge A"),
+          ("edge_A_cm1_eV05", "cm^-1 eV^(-1/2)", 0.0, False, 1e8, "parametric edge A"),
           ("urbach_eV", "eV", 0.0, False, 1.0, "Urbach energy"),
           ("kane_Ep_eV", "eV", 0.0, False, 100.0, "Kane energy Ep"),
           ("spin_orbit_eV", "eV", 0.0, False, 10.0, "spin-orbit splitting"),
@@ -251,9 +251,9 @@ _KEYS: list[Key] = [
          consumer="materials", doc=d)
       for m in ("mobility_e", "mobility_h")
       for n, u, dflt, lo, lo_open, hi, inf, d in (
-          ("mu_min_cm2_Vs", "cm2/Vs", None, 0.0, False, 1e7, False, "minimum mobility"),
-          ("mu_max_cm2_Vs", "cm2/Vs", None, 0.0, True, 1e7, False, "lattice mobility at 300 K"),
-          ("n_ref_cm3", "cm-3", None, 0.0, True, 1e30, True, "reference density (inf: no doping dependence)"),
+          ("mu_min_cm2_Vs", "cm^2 V^-1 s^-1", None, 0.0, False, 1e7, False, "minimum mobility"),
+          ("mu_max_cm2_Vs", "cm^2 V^-1 s^-1", None, 0.0, True, 1e7, False, "lattice mobility at 300 K"),
+          ("n_ref_cm3", "cm^-3", None, 0.0, True, 1e30, True, "reference density (inf: no doping dependence)"),
           ("alpha", "-", None, 0.0, True, 10.0, False, "exponent alpha"),
           ("theta", "-", 0.0, -10.0, False, 10.0, False, "temperature exponent of mu_max"),
           ("xi", "-", 0.0, -10.0, False, 10.0, False, "temperature exponent of n_ref"))],
@@ -280,13 +280,13 @@ _KEYS: list[Key] = [
        doc="AM1.5G, AM1.5D, AM0, blackbody, laser, led or file (optogen spectra)"),
     _k("light.suns", _NUM, "suns", None, 0.0, SUNS_MAX, sweep=FAST, consumer="light.scale",
        doc="irradiance in suns (1 sun = 1000 W m-2 of the spectrum's shape)"),
-    _k("light.irradiance_W_m2", _NUM, "W m-2", None, 0.0, IRRADIANCE_MAX_W_m2, sweep=FAST, consumer="light.scale",
+    _k("light.irradiance_W_m2", _NUM, "W m^-2", None, 0.0, IRRADIANCE_MAX_W_m2, sweep=FAST, consumer="light.scale",
        doc="total incident irradiance"),
     _k("light.power_W", _NUM, "W", None, 0.0, 1e6, sweep=FAST, consumer="light.scale",
        doc="power spread evenly over the spot"),
-    _k("light.photon_flux_cm2_s", _NUM, "cm-2 s-1", None, 0.0, 1e23, sweep=FAST, consumer="light.scale",
+    _k("light.photon_flux_cm2_s", _NUM, "cm^-2 s^-1", None, 0.0, 1e23, sweep=FAST, consumer="light.scale",
        doc="total incident photon flux"),
-    _k("light.spot_area_cm2", _NUM, "cm2", None, 1e-12, 1e6, consumer="light.illuminated_area_cm2",
+    _k("light.spot_area_cm2", _NUM, "cm^2", None, 1e-12, 1e6, consumer="light.illuminated_area_cm2",
        doc="illuminated area, with power_W"),
     _k("light.beam_diameter_mm", _NUM, "mm", None, 1e-5, 1e4, consumer="light.illuminated_area_cm2",
        doc="beam diameter (top-hat), with power_W"),
@@ -294,10 +294,24 @@ _KEYS: list[Key] = [
     _k("light.peak_nm", _NUM, "nm", None, 100.0, 1e5, consumer="light.led", doc="LED peak wavelength"),
     _k("light.fwhm_nm", _NUM, "nm", None, 0.1, 1e4, consumer="light.led", doc="LED line width (FWHM)"),
     _k("light.temperature_K", _NUM, "K", None, 1.0, 1e4, consumer="light.blackbody", doc="emitter temperature"),
-    _k("light.field_of_view_deg", _NUM, "deg", 90.0, 0.0, 90.0, low_open=True, consumer="light.blackbody",
+    _k("light.field_of_view_deg", _NUM, "degree", 90.0, 0.0, 90.0, low_open=True, consumer="light.blackbody",
        doc="field-of-view half-angle"),
     _k("light.emissivity", _NUM, "-", 1.0, 0.0, 1.0, consumer="light.blackbody", doc="grey emissivity"),
-    _k("light.path", STRING, "", None, consumer="light.from_file", doc="spectrum CSV, relative to the scenario"),
+    _k("light.path", STRING, "", None, consumer="light.from_file",
+       doc="measured spectrum: a delimited text file (comma, tab, semicolon or white space) with a header "
+           "naming a wavelength or energy column and an irradiance or photon-flux column, units in brackets; "
+           "relative to the scenario"),
+    _k("light.wavelength_column", (STRING, INTEGER), "", None, 1, None, sweep=None, consumer="light.read_spectrum",
+       doc="the spectral-axis column of the file: its header name or 1-based number (default: the first "
+           "wavelength or energy column)"),
+    _k("light.irradiance_column", (STRING, INTEGER), "", None, 1, None, sweep=None, consumer="light.read_spectrum",
+       doc="the value column of the file: its header name or 1-based number (default: the only irradiance or "
+           "photon-flux column)"),
+    _k("light.wavelength_unit", STRING, "", None, choices=("nm", "um", "eV"), consumer="light.read_spectrum",
+       doc="unit of the spectral-axis column when its header gives none (or to override it): nm, um or eV"),
+    _k("light.irradiance_unit", STRING, "", None, pattern=r"^[A-Za-z0-9 ^()/*.\-]{1,40}$", consumer="light.read_spectrum",
+       doc="unit of the value column when its header gives none, e.g. W m^-2 nm^-1, W m^-2 um^-1, W m^-2 eV^-1, "
+           "cm^-2 s^-1 nm^-1"),
     # -- [optics] --------------------------------------------------------------------------
     _k("optics.front_reflectance", (NUMBER, STRING, TABLE), "-", 0.0, 0.0, 1.0,
        pattern=r"(?i)\s*bare\s*|.*\.csv\s*", consumer="optics.front_reflectance",
@@ -318,13 +332,13 @@ _KEYS: list[Key] = [
        consumer="recombination", doc="Auger + radiative model"),
     _k("recombination.bandgap_narrowing", STRING, "", None, models="equilibrium.BGN_MODELS:_BGN_ALIASES",
        consumer="recombination", doc="band-gap narrowing model"),
-    _k("recombination.front_J0_fA_cm2", _NUM, "fA cm-2", None, 0.0, 1e15, consumer="recombination",
+    _k("recombination.front_J0_fA_cm2", _NUM, "fA cm^-2", None, 0.0, 1e15, consumer="recombination",
        doc="front surface saturation current density"),
-    _k("recombination.front_S_cm_s", _NUM, "cm/s", None, 0.0, 1e8, consumer="recombination",
+    _k("recombination.front_S_cm_s", _NUM, "cm s^-1", None, 0.0, 1e8, consumer="recombination",
        doc="front surface recombination velocity"),
-    _k("recombination.rear_J0_fA_cm2", _NUM, "fA cm-2", None, 0.0, 1e15, consumer="recombination",
+    _k("recombination.rear_J0_fA_cm2", _NUM, "fA cm^-2", None, 0.0, 1e15, consumer="recombination",
        doc="rear surface saturation current density"),
-    _k("recombination.rear_S_cm_s", _NUM, "cm/s", None, 0.0, 1e8, consumer="recombination",
+    _k("recombination.rear_S_cm_s", _NUM, "cm s^-1", None, 0.0, 1e8, consumer="recombination",
        doc="rear surface recombination velocity"),
     _k("recombination.J0_reference_K", (NUMBER, FALSE), "K", 298.15, T_MIN_K, T_MAX_K, consumer="recombination",
        doc="temperature of the J0 values (false: J0 fixed)"),
@@ -339,15 +353,15 @@ _KEYS: list[Key] = [
        doc="SRH levels ([[recombination.defects]])"),
     _k("recombination.defects.*.name", STRING, "", "custom", consumer="recombination",
        doc="a built-in defect (Fe_i, FeB) or a label"),
-    _k("recombination.defects.*.density_cm3", _NUM, "cm-3", None, 0.0, DOPING_MAX_cm3, consumer="recombination",
+    _k("recombination.defects.*.density_cm3", _NUM, "cm^-3", None, 0.0, DOPING_MAX_cm3, consumer="recombination",
        doc="defect density"),
     _k("recombination.defects.*.energy_eV", _NUM, "eV", None, -10.0, 10.0, consumer="recombination",
        doc="level energy from energy_ref"),
     _k("recombination.defects.*.energy_ref", STRING, "", "Ev", choices=("Ev", "Ec", "Ei"), consumer="recombination",
        doc="reference of energy_eV"),
-    _k("recombination.defects.*.sigma_n_cm2", _NUM, "cm2", None, 0.0, 1e-10, consumer="recombination",
+    _k("recombination.defects.*.sigma_n_cm2", _NUM, "cm^2", None, 0.0, 1e-10, consumer="recombination",
        doc="electron capture cross-section"),
-    _k("recombination.defects.*.sigma_p_cm2", _NUM, "cm2", None, 0.0, 1e-10, consumer="recombination",
+    _k("recombination.defects.*.sigma_p_cm2", _NUM, "cm^2", None, 0.0, 1e-10, consumer="recombination",
        doc="hole capture cross-section"),
     _k("recombination.defects.*.tau_n0_s", _NUM, "s", None, 1e-15, 1e6, consumer="recombination",
        doc="electron capture time constant"),
@@ -357,7 +371,7 @@ _KEYS: list[Key] = [
     # -- [background] ----------------------------------------------------------------------
     _k("background.temperature_K", _NUM, "K", 300.0, 1.0, 3000.0, consumer="light.blackbody",
        doc="scene temperature"),
-    _k("background.field_of_view_deg", _NUM, "deg", 90.0, 0.0, 90.0, low_open=True, consumer="light.blackbody",
+    _k("background.field_of_view_deg", _NUM, "degree", 90.0, 0.0, 90.0, low_open=True, consumer="light.blackbody",
        doc="field-of-view half-angle (not with f_number)"),
     _k("background.emissivity", _NUM, "-", 1.0, 0.0, 1.0, consumer="light.blackbody", doc="grey emissivity"),
     _k("background.f_number", _NUM, "-", None, F_NUMBER_MIN, F_NUMBER_MAX, low_open=True, consumer="pipeline.build",
@@ -373,10 +387,10 @@ _KEYS: list[Key] = [
        doc="electrode spacing (photodiode: pixel side)"),
     _k("detector.width_um", _NUM, "um", 1000.0, 1e-3, 1e6, consumer="detector", doc="bar or pixel width"),
     _k("detector.bias_V", _NUM, "V", 1.0, -1e4, 1e4, consumer="detector", doc="bias"),
-    _k("detector.junction_side_doping_cm3", _NUM, "cm-3", None, 0.0, DOPING_MAX_cm3, low_open=True,
+    _k("detector.junction_side_doping_cm3", _NUM, "cm^-3", None, 0.0, DOPING_MAX_cm3, low_open=True,
        consumer="detector", doc="heavy side doping (photodiode)"),
     _k("detector.bandwidth_Hz", _NUM, "Hz", 1.0, 1e-6, 1e12, consumer="detector", doc="noise bandwidth"),
-    _k("detector.rear_S_cm_s", _NUM, "cm/s", None, 0.0, 1e8, consumer="detector",
+    _k("detector.rear_S_cm_s", _NUM, "cm s^-1", None, 0.0, 1e8, consumer="detector",
        doc="rear velocity for the thin-base J0 (photodiode)"),
     _k("detector.generation_lifetime_s", _NUM, "s", None, 0.0, 1e6, low_open=True, consumer="detector",
        doc="depletion-region generation lifetime (photodiode)"),
@@ -401,7 +415,7 @@ LIGHT_SOURCE_KEYS = {
     "blackbody": ("temperature_K", "field_of_view_deg", "emissivity"),
     "laser": ("wavelength_nm",),
     "led": ("peak_nm", "fwhm_nm"),
-    "file": ("path",),
+    "file": ("path", "wavelength_column", "irradiance_column", "wavelength_unit", "irradiance_unit"),
 }
 
 #: tables whose own keys are free (any name, string values)
@@ -680,25 +694,35 @@ def _short(values):
 
 
 def check_models(data: Mapping[str, Any]) -> None:
-    """Check the model-name keys (`Key.models`) against the core's dispatch tables.
+    """Check the model-name keys (`Key.models`) against the model registry (`optogen.registry`).
 
-    Imports the consuming modules, so it runs in `optogen check` (pipeline.build), not
-    in `validate`.
+    Each key with ``models`` is matched to the registered models whose scenario keys include
+    its path; an unknown name raises the registry's InputError (field, canonical names,
+    did-you-mean).  Material names are left to `optogen.materials.get`.  Imports the core
+    (the registering modules), so it runs in `optogen check` (pipeline.build), not in `validate`.
+
+    Parameters
+    ----------
+    data : mapping
+        A scenario's nested tables [-].
+
+    Raises
+    ------
+    InputError
+        For an unknown model name.
     """
-    import importlib
-    from . import _dispatch
+    from . import registry
+    by_key = {k: m.kind for m in registry.models() for k in m.keys}
     for key in _KEYS:
-        if not key.models or "*" in key.path:
-            continue
+        if not key.models or "*" in key.path or key.models.startswith("materials."):
+            continue                    # materials.get gives its own did-you-mean with aliases
         value = _get(data, key.path)
         if value is None or not isinstance(value, str):
             continue
-        module, _, names = key.models.partition(".")
-        if module == "materials":
-            continue                    # materials.get gives its own did-you-mean with aliases
-        table, _, alias_name = names.partition(":")
-        mod = importlib.import_module(f"optogen.{module}")
-        _dispatch.pick(key.path, value, getattr(mod, table), getattr(mod, alias_name) if alias_name else None)
+        kind = by_key.get(key.path)
+        if kind is None:
+            raise RuntimeError(f"schema key {key.path} names models but no registered model uses it")
+        registry.pick(kind, value, key.path)
 
 
 def _get(data, path):

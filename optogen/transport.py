@@ -4,7 +4,8 @@ ambipolar diffusion, diffusion length and photoconductance.
 Every function is a pure numpy function that broadcasts over any shape.
 Densities [cm^-3], mobilities [cm^2 V^-1 s^-1], temperatures [K], lengths [cm].
 
-Mobility models (each its own function, dispatched by `mobility_cm2_Vs`):
+Mobility models (each its own function, registered in `optogen.registry` as kind
+"mobility" and selected by `mobility_cm2_Vs`):
 
 * ``klaassen1992``   silicon, lattice + donor/acceptor (majority and minority)
                      + carrier-carrier scattering, with clustering and temperature
@@ -18,10 +19,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._dispatch import pick
+from . import registry
 from .constants import kT_eV, q_C
-from .equilibrium import equilibrium, ni_nc_nv_eg
+from .equilibrium import equilibrium, full_ionisation_cm3, ni_nc_nv_eg
 from .errors import InputError, check_range
+from .materials.silicon import MOBILITY_E_SI as _E, MOBILITY_H_SI as _H
 
 __all__ = [
     "mobility_klaassen1992", "mobility_masetti1983", "mobility_caughey_thomas",
@@ -42,13 +44,14 @@ def _arr(x):
 
 #: Parameters of Klaassen 1992 (part I, Table 1 and eqs. for P, G, F; part II
 #: for the temperature exponents), as recalled (from memory).  Electrons use
-#: the phosphorus set, holes the boron set.
+#: the phosphorus set, holes the boron set; the lattice and doping constants are
+#: the silicon record's (`optogen.materials.silicon.MOBILITY_E_SI` / `MOBILITY_H_SI`).
 KLAASSEN1992 = dict(
-    mu_max=(1414.0, 470.5),      # lattice mobility at 300 K [cm^2/Vs] (e, h)
-    mu_min=(68.5, 44.9),         # [cm^2/Vs]
-    theta=(2.285, 2.247),        # lattice temperature exponent [-]
-    n_ref=(9.20e16, 2.23e17),    # [cm^-3]
-    alpha=(0.711, 0.719),        # [-]
+    mu_max=(_E.mu_max_cm2_Vs, _H.mu_max_cm2_Vs),   # lattice mobility at 300 K [cm^2/Vs] (e, h)
+    mu_min=(_E.mu_min_cm2_Vs, _H.mu_min_cm2_Vs),   # [cm^2/Vs]
+    theta=(_E.theta, _H.theta),                    # lattice temperature exponent [-]
+    n_ref=(_E.n_ref_cm3, _H.n_ref_cm3),            # [cm^-3]
+    alpha=(_E.alpha, _H.alpha),                    # [-]
     mass=(1.0, 1.258),           # carrier masses used in P, G, F [m0]
     c_D=0.21, c_A=0.50,          # clustering [-]
     n_ref_D=4.0e20, n_ref_A=7.2e20,   # clustering reference densities [cm^-3]
@@ -104,11 +107,6 @@ def _klaassen_F(P, mass_ratio):
 def mobility_klaassen1992(T_K, donors_cm3, acceptors_cm3, n_cm3, p_cm3):
     """Silicon electron and hole mobilities, Klaassen's unified model.
 
-    D. B. M. Klaassen, "A unified mobility model for device simulation - I.
-    Model equations and concentration dependence", Solid-State Electron. 35,
-    953 (1992), doi:10.1016/0038-1101(92)90325-7; "- II. Temperature dependence
-    of carrier mobility and lifetime", ibid. 961, doi:10.1016/0038-1101(92)90326-8.
-
     For carrier i (e or h), Matthiessen's rule:
         1/mu_i = 1/mu_i,L + 1/mu_i,DAj
         mu_i,L   = mu_max (T/300)^-theta                                  (lattice)
@@ -133,9 +131,26 @@ def mobility_klaassen1992(T_K, donors_cm3, acceptors_cm3, n_cm3, p_cm3):
     boron set for holes); G(P) is held at its minimum for P below it (see
     `_klaassen_G`); the charge number Z in P_CW is taken as 1.
 
-    T_K: temperature [K]; donors_cm3, acceptors_cm3: ionised dopant densities
-    [cm^-3]; n_cm3, p_cm3: electron and hole densities [cm^-3].
-    Returns (mu_e, mu_h) [cm^2 V^-1 s^-1].
+    Parameters
+    ----------
+    T_K : array_like
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : array_like
+        Ionised dopant densities [cm^-3].
+    n_cm3, p_cm3 : array_like
+        Electron and hole densities [cm^-3].
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        mu_e, mu_h [cm^2 V^-1 s^-1].
+
+    References
+    ----------
+    D. B. M. Klaassen, "A unified mobility model for device simulation - I. Model equations and
+    concentration dependence", Solid-State Electron. 35, 953 (1992), doi:10.1016/0038-1101(92)90325-7;
+    "- II. Temperature dependence of carrier mobility and lifetime", ibid. 961,
+    doi:10.1016/0038-1101(92)90326-8.
     """
     k = KLAASSEN1992
     T, Nd, Na, n, p = np.broadcast_arrays(*(_arr(x) for x in (T_K, donors_cm3, acceptors_cm3, n_cm3, p_cm3)))
@@ -170,14 +185,15 @@ def mobility_klaassen1992(T_K, donors_cm3, acceptors_cm3, n_cm3, p_cm3):
 # ---------------------------------------------------------------------------
 
 #: Masetti, Severi & Solmi 1983, Table (from memory):
-#: (mu_min1, mu_min2, mu_1, mu_max, C_r, C_s, alpha, beta, P_c)
+#: (mu_min1, mu_min2, mu_1, mu_max, C_r, C_s, alpha, beta, P_c); the P and B sets share
+#: mu_min, mu_max, C_r and alpha with the silicon record (`MOBILITY_E_SI` / `MOBILITY_H_SI`).
 MASETTI1983 = {
-    "P": (68.5, 68.5, 56.1, 1414.0, 9.20e16, 3.41e20, 0.711, 1.98, 0.0),
+    "P": (_E.mu_min_cm2_Vs, _E.mu_min_cm2_Vs, 56.1, _E.mu_max_cm2_Vs, _E.n_ref_cm3, 3.41e20, _E.alpha, 1.98, 0.0),
     "As": (52.2, 52.2, 43.4, 1417.0, 9.68e16, 3.43e20, 0.680, 2.00, 0.0),
-    "B": (44.9, 0.0, 29.0, 470.5, 2.23e17, 6.10e20, 0.719, 2.00, 9.23e16),
+    "B": (_H.mu_min_cm2_Vs, 0.0, 29.0, _H.mu_max_cm2_Vs, _H.n_ref_cm3, 6.10e20, _H.alpha, 2.00, 9.23e16),
 }
-#: Lattice temperature exponents theta (e, h), Klaassen 1992 part I (from memory).
-_THETA_SI = (2.285, 2.247)
+#: Lattice temperature exponents theta (e, h), Klaassen 1992 part I (from memory), as in the Si record.
+_THETA_SI = (_E.theta, _H.theta)
 
 
 def _masetti(N, T, pars, theta):
@@ -192,10 +208,6 @@ def _masetti(N, T, pars, theta):
 def mobility_masetti1983(T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3=None, donor_species="P"):
     """Silicon mobilities from Masetti, Severi & Solmi, with a lattice temperature factor.
 
-    G. Masetti, M. Severi and S. Solmi, "Modeling of carrier mobility against
-    carrier concentration in arsenic-, phosphorus-, and boron-doped silicon",
-    IEEE Trans. Electron Devices 30, 764 (1983), doi:10.1109/T-ED.1983.21207.
-
         mu(N) = mu_min1 exp(-P_c/N) + (mu_L - mu_min2)/(1 + (N/C_r)^alpha)
                 - mu_1/(1 + (C_s/N)^beta),        N = N_D + N_A,
         mu_L  = mu_max (T/300)^-theta   (theta = 2.285 e, 2.247 h, Klaassen 1992).
@@ -203,11 +215,29 @@ def mobility_masetti1983(T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3=None,
     Electrons use the phosphorus (or arsenic) set, holes the boron set.  The
     fit is for majority carriers at 300 K; applied to minority carriers it is
     the common approximation (Klaassen 1992 treats them properly).  Only the
-    lattice term is scaled with temperature.  n_cm3, p_cm3 are accepted for a
-    common signature and ignored (no carrier-carrier scattering).
+    lattice term is scaled with temperature.
 
-    T_K [K]; donors_cm3, acceptors_cm3 [cm^-3]; donor_species "P" or "As".
-    Returns (mu_e, mu_h) [cm^2 V^-1 s^-1].
+    Parameters
+    ----------
+    T_K : array_like
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : array_like
+        Dopant densities [cm^-3].
+    n_cm3, p_cm3 : array_like, optional
+        Accepted for a common signature and ignored (no carrier-carrier scattering) [cm^-3].
+    donor_species : str
+        "P" or "As" [-].
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        mu_e, mu_h [cm^2 V^-1 s^-1].
+
+    References
+    ----------
+    G. Masetti, M. Severi and S. Solmi, "Modeling of carrier mobility against carrier concentration
+    in arsenic-, phosphorus-, and boron-doped silicon", IEEE Trans. Electron Devices 30, 764 (1983),
+    doi:10.1109/T-ED.1983.21207.
     """
     T, Nd, Na = np.broadcast_arrays(_arr(T_K), _arr(donors_cm3), _arr(acceptors_cm3))
     N = Nd + Na
@@ -230,17 +260,28 @@ def _caughey_thomas_one(ct, N, T):
 def mobility_caughey_thomas(T_K, donors_cm3, acceptors_cm3, electron, hole):
     """Caughey-Thomas doping-dependent mobility with power-law temperature factors.
 
-    D. M. Caughey and R. E. Thomas, "Carrier mobilities in silicon empirically
-    related to doping and field", Proc. IEEE 55, 2192 (1967),
-    doi:10.1109/PROC.1967.6123; temperature factors in the form of N. D. Arora,
-    J. R. Hauser and D. J. Roulston, IEEE Trans. Electron Devices 29, 292 (1982).
-
         mu(N, T) = mu_min + (mu_max (T/300)^-theta - mu_min) / (1 + (N / (N_ref (T/300)^xi))^alpha),
         N = N_D + N_A (total ionised impurity density).
 
-    electron, hole: `optogen.materials.CaugheyThomas` parameter records.
-    T_K [K]; donors_cm3, acceptors_cm3 [cm^-3].
-    Returns (mu_e, mu_h) [cm^2 V^-1 s^-1].
+    Parameters
+    ----------
+    T_K : array_like
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : array_like
+        Dopant densities [cm^-3].
+    electron, hole : optogen.materials.CaugheyThomas
+        Parameter records of the two carriers.
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        mu_e, mu_h [cm^2 V^-1 s^-1].
+
+    References
+    ----------
+    D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967), doi:10.1109/PROC.1967.6123;
+    temperature factors in the form of N. D. Arora, J. R. Hauser and D. J. Roulston, IEEE Trans.
+    Electron Devices 29, 292 (1982).
     """
     T, Nd, Na = np.broadcast_arrays(_arr(T_K), _arr(donors_cm3), _arr(acceptors_cm3))
     N = Nd + Na
@@ -267,13 +308,43 @@ def _ct_entry(material, T, Nd, Na, n, p):
     return mobility_caughey_thomas(T, Nd, Na, material.mobility_e, material.mobility_h)
 
 
-MOBILITY_MODELS = {
-    "klaassen1992": _klaassen_entry,
-    "masetti1983": _masetti_entry,
-    "caughey_thomas": _ct_entry,
-}
-_ALIASES = {"klaassen": "klaassen1992", "masetti": "masetti1983", "ct": "caughey_thomas",
-            "caughey-thomas1967": "caughey_thomas", "caughey": "caughey_thomas"}
+_KEYS = ("absorber.mobility_model", "absorber.custom.mobility_model")
+registry.register(
+    "mobility", "klaassen1992", mobility_klaassen1992, key=_KEYS, call=_klaassen_entry, materials=("Si",),
+    injection=True, aliases=("klaassen",),
+    summary="lattice, impurity (majority and minority) and carrier-carrier scattering, with temperature",
+    reference="D. B. M. Klaassen, Solid-State Electron. 35, 953 and 961 (1992)", doi="10.1016/0038-1101(92)90325-7")
+registry.register(
+    "mobility", "masetti1983", mobility_masetti1983, key=_KEYS, call=_masetti_entry, materials=("Si",),
+    aliases=("masetti",), summary="majority-carrier doping dependence, lattice part scaled with T",
+    reference="G. Masetti, M. Severi and S. Solmi, IEEE Trans. Electron Devices 30, 764 (1983)",
+    doi="10.1109/T-ED.1983.21207")
+registry.register(
+    "mobility", "caughey_thomas", mobility_caughey_thomas, key=_KEYS, call=_ct_entry,
+    aliases=("ct", "caughey-thomas1967", "caughey"),
+    summary="doping and temperature dependence from the material record's mobility_e / mobility_h",
+    reference="D. M. Caughey and R. E. Thomas, Proc. IEEE 55, 2192 (1967)", doi="10.1109/PROC.1967.6123")
+
+#: canonical mobility model name -> (mu_e, mu_h)(material, T, N_D, N_A, n, p) (a view of the registry)
+MOBILITY_MODELS = {m.name: m.call for m in registry.models("mobility", load=False)}
+
+
+def pick_mobility_model(material, model: str | None = None) -> registry.Model:
+    """The registered mobility model for `material` (checked to apply to it).
+
+    Parameters
+    ----------
+    material : optogen.materials.Material
+    model : str, optional
+        Model name or alias (default: `material.mobility_model`) [-].
+
+    Returns
+    -------
+    optogen.registry.Model
+    """
+    name = model or material.mobility_model
+    return registry.check_material(registry.pick("mobility", name, "absorber.mobility_model"), material,
+                                   "absorber.mobility_model", name)
 
 
 def missing_mobility_record(material) -> str | None:
@@ -281,15 +352,15 @@ def missing_mobility_record(material) -> str | None:
 
     Parameters
     ----------
-    material : `optogen.materials.Material`
+    material : optogen.materials.Material
 
     Returns
     -------
-    "mobility_e" or "mobility_h" when `material.mobility_model` is caughey_thomas and that
-    record is absent, else None.
+    str or None
+        "mobility_e" or "mobility_h" when `material.mobility_model` is caughey_thomas and that
+        record is absent, else None.
     """
-    if pick("absorber.mobility_model", material.mobility_model, MOBILITY_MODELS, _ALIASES) \
-            is not MOBILITY_MODELS["caughey_thomas"]:
+    if registry.pick("mobility", material.mobility_model, "absorber.mobility_model").name != "caughey_thomas":
         return None
     for k in ("mobility_e", "mobility_h"):
         if getattr(material, k, None) is None:
@@ -298,36 +369,60 @@ def missing_mobility_record(material) -> str | None:
 
 
 def carriers_full_ionisation(material, T_K, donors_cm3, acceptors_cm3):
-    """Equilibrium (n0, p0) [cm^-3] with every dopant ionised.
+    """Equilibrium (n0, p0) with every dopant ionised.
 
-    n0 - p0 = N_D - N_A and n0 p0 = n_i^2 with n_i = sqrt(Nc Nv) exp(-Eg/2kT)
-    from the material record (Boltzmann statistics, no band-gap narrowing).
-    The majority density is taken from the quadratic, the minority from
-    n_i^2/majority (no cancellation).  This is the simple state used for
-    resistivity conversion (ASTM F723 practice); `optogen.equilibrium` gives
-    the full Fermi-Dirac, incomplete-ionisation result.
+    n0 - p0 = N_D - N_A and n0 p0 = n_i^2 with n_i = sqrt(Nc Nv) exp(-Eg/2kT) from the material
+    record (Boltzmann statistics, no band-gap narrowing), through the one definition of this state,
+    `optogen.equilibrium.full_ionisation_cm3`.  This is the simple state used for resistivity
+    conversion (ASTM F723 practice); `optogen.equilibrium.equilibrium` gives the full Fermi-Dirac,
+    incomplete-ionisation result.
 
-    T_K [K]; donors_cm3, acceptors_cm3 [cm^-3].  Returns (n0, p0) [cm^-3].
+    Parameters
+    ----------
+    material : optogen.materials.Material
+    T_K : array_like
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : array_like
+        Dopant densities [cm^-3].
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        n0, p0 [cm^-3].
+
+    References
+    ----------
+    ASTM F723 (W. R. Thurber et al., NBS Special Publication 400-64, 1981) for the convention.
     """
     T, Nd, Na = np.broadcast_arrays(_arr(T_K), _arr(donors_cm3), _arr(acceptors_cm3))
-    ni = ni_nc_nv_eg(material, T)
-    half = 0.5 * np.abs(Nd - Na)
-    major = half + np.hypot(half, ni)
-    minor = ni * (ni / major)
-    n_type = Nd >= Na
-    return np.where(n_type, major, minor), np.where(n_type, minor, major)
+    return full_ionisation_cm3(Nd, Na, ni_nc_nv_eg(material, T, log=True))
 
 
 def mobility_cm2_Vs(material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3=None, model=None):
-    """Electron and hole mobilities (mu_e, mu_h) [cm^2 V^-1 s^-1].
+    """Electron and hole mobilities of a material by model name.
 
-    material: `optogen.materials.Material`; T_K [K]; donors_cm3, acceptors_cm3:
-    ionised dopant densities [cm^-3]; n_cm3, p_cm3: carrier densities [cm^-3]
-    (default: the full-ionisation equilibrium, `carriers_full_ionisation`);
-    model: "klaassen1992", "masetti1983" or "caughey_thomas" (default
-    `material.mobility_model`).  Broadcasts over all array arguments.
+    Parameters
+    ----------
+    material : optogen.materials.Material
+    T_K : array_like
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : array_like
+        Ionised dopant densities [cm^-3].
+    n_cm3, p_cm3 : array_like, optional
+        Carrier densities [cm^-3] (default: the full-ionisation equilibrium, `carriers_full_ionisation`).
+    model : str, optional
+        A registered "mobility" model (default `material.mobility_model`) [-].
+
+    Returns
+    -------
+    (ndarray, ndarray)
+        mu_e, mu_h [cm^2 V^-1 s^-1], broadcast over all array arguments.
+
+    References
+    ----------
+    The chosen model's (`optogen.registry.models("mobility")`).
     """
-    fn = pick("absorber.mobility_model", model or material.mobility_model, MOBILITY_MODELS, _ALIASES)
+    fn = pick_mobility_model(material, model).call
     T = check_range("absorber.temperature_K", T_K, 0.0, low_open=True, unit="K")
     Nd = check_range("absorber.donors_cm3", donors_cm3, 0.0, unit="cm^-3")
     Na = check_range("absorber.acceptors_cm3", acceptors_cm3, 0.0, unit="cm^-3")
@@ -345,9 +440,23 @@ def mobility_cm2_Vs(material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3=
 # ---------------------------------------------------------------------------
 
 def conductivity_S_cm(n_cm3, p_cm3, mu_e_cm2_Vs, mu_h_cm2_Vs):
-    """Conductivity sigma = q (n mu_e + p mu_h) [S/cm].
+    """Conductivity sigma = q (n mu_e + p mu_h).
 
-    n_cm3, p_cm3 [cm^-3]; mu_e_cm2_Vs, mu_h_cm2_Vs [cm^2 V^-1 s^-1].
+    Parameters
+    ----------
+    n_cm3, p_cm3 : array_like
+        Electron and hole densities [cm^-3].
+    mu_e_cm2_Vs, mu_h_cm2_Vs : array_like
+        Mobilities [cm^2 V^-1 s^-1].
+
+    Returns
+    -------
+    ndarray
+        sigma [S/cm].
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), ch. 1.
     """
     return q_C * (_arr(n_cm3) * _arr(mu_e_cm2_Vs) + _arr(p_cm3) * _arr(mu_h_cm2_Vs))
 
@@ -368,16 +477,32 @@ def _resistivity(material, N, kind, T, model):
 
 
 def doping_to_resistivity(material, density_cm3, dopant_type, T_K=300.0, model=None):
-    """Resistivity [ohm cm] of material doped with `density_cm3` of one type.
+    """Resistivity of material doped with `density_cm3` of one type.
 
-    rho = 1 / (q (n0 mu_e + p0 mu_h)), with (n0, p0) from full ionisation and
-    n0 p0 = n_i^2 (`carriers_full_ionisation`) and the mobilities of `model`
-    (default material.mobility_model).  Full ionisation follows ASTM F723
-    (Thurber et al., NBS Special Publication 400-64, 1981), whose conversion
-    is between dopant density and resistivity.
+    rho = 1 / (q (n0 mu_e + p0 mu_h)), with (n0, p0) from full ionisation and n0 p0 = n_i^2
+    (`carriers_full_ionisation`) and the mobilities of `model`.
 
-    density_cm3: donor (dopant_type "n") or acceptor ("p") density [cm^-3];
-    T_K [K].  Returns resistivity [ohm cm].
+    Parameters
+    ----------
+    material : optogen.materials.Material
+    density_cm3 : array_like
+        Donor (dopant_type "n") or acceptor ("p") density [cm^-3].
+    dopant_type : str
+        "n" or "p" [-].
+    T_K : array_like
+        Temperature [K].
+    model : str, optional
+        A registered "mobility" model (default `material.mobility_model`) [-].
+
+    Returns
+    -------
+    ndarray
+        Resistivity [ohm cm].
+
+    References
+    ----------
+    ASTM F723; W. R. Thurber, R. L. Mattis, Y. M. Liu and J. J. Filliben, NBS Special
+    Publication 400-64 (1981): conversion between dopant density and resistivity with full ionisation.
     """
     N = check_range("absorber.donors_cm3" if str(dopant_type).lower() == "n" else "absorber.acceptors_cm3",
                     density_cm3, 0.0, unit="cm^-3")
@@ -387,22 +512,41 @@ def doping_to_resistivity(material, density_cm3, dopant_type, T_K=300.0, model=N
 
 def resistivity_to_doping(material, resistivity_ohm_cm, dopant_type, T_K=300.0, model=None,
                           max_density_cm3=1e22):
-    """Dopant density [cm^-3] giving `resistivity_ohm_cm` (inverse of `doping_to_resistivity`).
+    """Dopant density giving `resistivity_ohm_cm` (inverse of `doping_to_resistivity`).
 
-    Solves rho(N) = rho_target for N by a vectorised bisection in ln N (all
-    array elements at once, 60 halvings: relative accuracy ~1e-16 of the
-    bracket), bracketed between
+    Solves rho(N) = rho_target for N by a vectorised bisection in ln N (all array elements at
+    once, 60 halvings: relative accuracy ~1e-16 of the bracket), bracketed between
       * N_lo: below the highest resistivity reachable with this dopant type.
         With lattice mobilities mu_maj, mu_min, sigma(majority m) = q (mu_maj m
         + mu_min n_i^2/m) is smallest at m = n_i (mu_min/mu_maj)^(1/2), i.e.
         N* = n_i (r^(1/2) - r^(-1/2)), r = mu_min/mu_maj; rho(N) falls
         monotonically above N* (above N = 0 when r <= 1, e.g. n-type Si);
       * N_hi = max_density_cm3.
-    A target outside [rho(N_hi), rho(N_lo)] raises InputError.  Full ionisation
-    is assumed (ASTM F723 practice; see `doping_to_resistivity`).
+    A target outside [rho(N_hi), rho(N_lo)] raises InputError.  Full ionisation is assumed
+    (ASTM F723 practice; see `doping_to_resistivity`).
 
-    resistivity_ohm_cm [ohm cm] (> 0); dopant_type "n" or "p"; T_K [K].
-    Returns the donor ("n") or acceptor ("p") density [cm^-3].
+    Parameters
+    ----------
+    material : optogen.materials.Material
+    resistivity_ohm_cm : array_like
+        Target resistivity, > 0 [ohm cm].
+    dopant_type : str
+        "n" or "p" [-].
+    T_K : array_like
+        Temperature [K].
+    model : str, optional
+        A registered "mobility" model [-].
+    max_density_cm3 : float
+        Upper end of the bracket [cm^-3].
+
+    Returns
+    -------
+    ndarray or float
+        The donor ("n") or acceptor ("p") density [cm^-3].
+
+    References
+    ----------
+    ASTM F723; W. R. Thurber et al., NBS Special Publication 400-64 (1981).
     """
     rho = check_range("absorber.resistivity_ohm_cm", resistivity_ohm_cm, 0.0, low_open=True, unit="ohm cm")
     _doping_pair(np.zeros(1), dopant_type)        # validates dopant_type
@@ -480,29 +624,73 @@ def match_resistivity_cm3(material, resistivity_ohm_cm, dopant_type, T_K=300.0, 
 # ---------------------------------------------------------------------------
 
 def diffusivity_cm2_s(mobility_cm2_Vs, T_K):
-    """Einstein relation D = mu kT/q [cm^2/s] (non-degenerate).
+    """Einstein relation D = mu kT/q (non-degenerate).
 
-    mobility_cm2_Vs [cm^2 V^-1 s^-1]; T_K [K].
+    Parameters
+    ----------
+    mobility_cm2_Vs : array_like
+        Mobility [cm^2 V^-1 s^-1].
+    T_K : array_like
+        Temperature [K].
+
+    Returns
+    -------
+    ndarray
+        D [cm^2/s].
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), ch. 1.
     """
     return _arr(mobility_cm2_Vs) * kT_eV(T_K)
 
 
 def ambipolar_diffusivity_cm2_s(n_cm3, p_cm3, D_e_cm2_s, D_h_cm2_s):
-    """Ambipolar diffusion coefficient D_amb = (n + p) D_e D_h / (n D_e + p D_h) [cm^2/s].
+    """Ambipolar diffusion coefficient D_amb = (n + p) D_e D_h / (n D_e + p D_h).
 
     Tends to the minority-carrier D in low injection and to 2 D_e D_h/(D_e + D_h)
-    in high injection (n = p).  Standard result, e.g. S. M. Sze and K. K. Ng,
-    Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), ch. 1; R. F. Pierret,
-    Advanced Semiconductor Fundamentals (2003).
+    in high injection (n = p).
 
-    n_cm3, p_cm3 [cm^-3]; D_e_cm2_s, D_h_cm2_s [cm^2/s].
+    Parameters
+    ----------
+    n_cm3, p_cm3 : array_like
+        Electron and hole densities [cm^-3].
+    D_e_cm2_s, D_h_cm2_s : array_like
+        Electron and hole diffusivities [cm^2/s].
+
+    Returns
+    -------
+    ndarray
+        D_amb [cm^2/s].
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), ch. 1;
+    R. F. Pierret, Advanced Semiconductor Fundamentals, 2nd ed. (Prentice Hall, 2003).
     """
     n, p, De, Dh = (_arr(x) for x in (n_cm3, p_cm3, D_e_cm2_s, D_h_cm2_s))
     return (n + p) * De * Dh / (n * De + p * Dh)
 
 
 def diffusion_length_cm(D_cm2_s, tau_s):
-    """Diffusion length L = sqrt(D tau) [cm].  D_cm2_s [cm^2/s]; tau_s [s]."""
+    """Diffusion length L = sqrt(D tau).
+
+    Parameters
+    ----------
+    D_cm2_s : array_like
+        Diffusivity [cm^2/s].
+    tau_s : array_like
+        Lifetime [s].
+
+    Returns
+    -------
+    ndarray
+        L [cm].
+
+    References
+    ----------
+    S. M. Sze and K. K. Ng, Physics of Semiconductor Devices, 3rd ed. (Wiley, 2007), ch. 1.
+    """
     return np.sqrt(_arr(D_cm2_s) * _arr(tau_s))
 
 

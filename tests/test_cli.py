@@ -249,3 +249,38 @@ def test_check_applies_the_light_ceiling_to_the_brightest_swept_value(capsys, tm
     assert "light.photon_flux_cm2_s" in capsys.readouterr().err
     path.write_text(path.read_text().replace("1e22]", "1e20]"))
     assert main(["check", str(path)]) == 0
+
+
+def test_demos_lists_every_bundled_scenario(capsys):
+    assert main(["demos"]) == 0
+    out = capsys.readouterr().out
+    names = {line.split()[0] for line in out.splitlines() if line.strip()}
+    assert names == {p.stem for p in SCEN.glob("*.toml")}            # the files of scenarios/
+    assert "Rooftop n-type wafer" in out
+
+
+def test_run_demo_by_name_equals_the_file(capsys):
+    d1 = run_json(capsys, "--demo", "rooftop_n_wafer", "--set", "light.suns=0.5")
+    assert main(["run", str(SCEN / "rooftop_n_wafer.toml"), "--json", "--set", "light.suns=0.5"]) == 0
+    d2 = json.loads(capsys.readouterr().out)
+    assert d1["steady_state"] == d2["steady_state"]
+
+
+@pytest.mark.parametrize("args, needle", [
+    (["run", "--demo", "rooftop"], "did you mean"),
+    (["run", str(SCEN / "rooftop_n_wafer.toml"), "--demo", "rooftop_n_wafer"], "not both"),
+    (["run"], "--demo NAME"),
+])
+def test_bad_demo_requests_are_input_errors(capsys, args, needle):
+    assert main(args) == 2
+    err = capsys.readouterr().err
+    assert needle in err and len(err.strip().splitlines()) == 1
+
+
+def test_history_records_the_command_line(tmp_path):
+    import xarray as xr
+    args = ["run", str(SCEN / "rooftop_n_wafer.toml"), "--set", "light.suns=0.25", "--out", str(tmp_path)]
+    assert main(args) == 0
+    ds = xr.open_dataset(tmp_path / "result.nc", engine="h5netcdf")
+    assert ds.attrs["history"].endswith("optogen " + " ".join(args))
+    assert "suns = 0.25" in ds.attrs["scenario_effective"] and ds.attrs["Conventions"] == "CF-1.10"

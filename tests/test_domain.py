@@ -161,8 +161,8 @@ def test_domain_corners_through_the_pipeline(material, temps, dopant, outside):
     ds = res.to_dataset()
     ok = ds["converged"].values
     shape = ok.shape
-    suns = ds["light.suns"].values[None, None, :] * np.ones(shape)
-    doping = ds[f"absorber.{dopant}"].values[None, :, None] * np.ones(shape)
+    suns = ds["light_suns"].values[None, None, :] * np.ones(shape)
+    doping = ds[f"absorber_{dopant}"].values[None, :, None] * np.ones(shape)
     assert bool((~ok).any()) == outside
     if outside:                                    # flagged points warn and carry no levels
         assert res.warnings and np.all(np.isnan(ds["splitting_eV"].values[~ok]))
@@ -192,7 +192,7 @@ def test_domain_corners_through_the_pipeline(material, temps, dopant, outside):
             # below the ~25 K critical temperature of its electron-hole liquid (Rice 1977, from memory)
             falls = ok & lit & ~np.isfinite(da.values)
             assert np.all(np.isfinite(v[ok & ~falls]) == lit[ok & ~falls]), name
-            assert np.all(ds["absorber.temperature_K"].values[:, None, None] * np.ones(shape) < 25.0, where=falls)
+            assert np.all(ds["absorber_temperature_K"].values[:, None, None] * np.ones(shape) < 25.0, where=falls)
             assert not falls.any() or any("electron-hole liquid" in str(w.message) for w in caught)
         elif name == "np_over_ni2":
             assert np.all(np.isfinite(v) | (ds["log10_np_over_ni2"].values > 308)), name

@@ -274,14 +274,14 @@ def test_to_dict_keys_and_types():
 
 def test_bad_inputs_name_the_field():
     cases = [
-        (dict(temperature_K=0.0), "absorber.temperature_K"),
-        (dict(temperature_K=[300.0, -5.0]), "absorber.temperature_K"),
-        (dict(temperature_K=float("nan")), "absorber.temperature_K"),
-        (dict(temperature_K=300.0, donors_cm3=-1e15), "absorber.donors_cm3"),
-        (dict(temperature_K=300.0, acceptors_cm3=[1e15, -1.0]), "absorber.acceptors_cm3"),
-        (dict(temperature_K=300.0, donors_cm3=1e15, donor="B"), "absorber.donor_species"),  # the scenario key
-        (dict(temperature_K=300.0, bgn_model="magic"), "recombination.bandgap_narrowing"),
-        (dict(temperature_K=300.0, ni_model="magic"), "absorber.ni_model"),
+        (dict(T_K=0.0), "absorber.temperature_K"),
+        (dict(T_K=[300.0, -5.0]), "absorber.temperature_K"),
+        (dict(T_K=float("nan")), "absorber.temperature_K"),
+        (dict(T_K=300.0, donors_cm3=-1e15), "absorber.donors_cm3"),
+        (dict(T_K=300.0, acceptors_cm3=[1e15, -1.0]), "absorber.acceptors_cm3"),
+        (dict(T_K=300.0, donors_cm3=1e15, donor="B"), "absorber.donor_species"),  # the scenario key
+        (dict(T_K=300.0, bgn_model="magic"), "recombination.bandgap_narrowing"),
+        (dict(T_K=300.0, ni_model="magic"), "absorber.ni_model"),
     ]
     for kwargs, field in cases:
         with pytest.raises(InputError) as err:

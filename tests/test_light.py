@@ -211,11 +211,16 @@ def test_from_file_irradiance_and_photon_flux(tmp_path):
 
 
 @pytest.mark.parametrize("text, line, words", [
-    ("wavelength_nm,irradiance_W_m2_nm\n400,1\n390,1\n", 3, "rise"),
+    ("wavelength_nm,irradiance_W_m2_nm\n400,1\n500,1\n450,1\n", 4, "rise"),
     ("wavelength_nm,irradiance_W_m2_nm\n400,1\n500,-1\n", 3, ">= 0"),
     ("wavelength_nm,irradiance_W_m2_nm\n400,1\n500,nan\n", 3, "finite"),
     ("wavelength_nm,irradiance_W_m2_nm\n400,1\n500,abc\n", 3, "not a number"),
-    ("wavelength_nm,irradiance_W_m2_nm\n400,1,2\n500,1\n", 2, "2 comma-separated"),
+    ("wavelength_nm,irradiance_W_m2_nm,note\n400,1,a\n500\n", 3, "column 2 is needed"),
+    ("wavelength (furlong),irradiance (W m^-2 nm^-1)\n400,1\n500,1\n", 1, "nm, um, eV"),
+    ("wavelength (nm),irradiance (W m^-2)\n400,1\n500,1\n", 1, "per wavelength"),
+    ("wavelength (nm),irradiance (W m^-2 nm^-1),intensity (W m^-2 nm^-1)\n400,1,1\n500,1,1\n", 1,
+     "light.irradiance_column"),
+    ("400,1\n500,1\n", 1, "no header"),
     ("# only one row\nwavelength_nm,irradiance_W_m2_nm\n400,1\n", 3, "at least two"),
     ("lambda,power\n400,1\n500,1\n", 1, "header"),
 ])
@@ -270,3 +275,86 @@ def test_table_errors(table, field, words):
     with pytest.raises(InputError) as err:
         light.source_from_table(table)
     assert err.value.field == field and words in str(err.value)
+
+
+# -- measured spectra: delimiters, header aliases, units, column choice ------------------------
+# 1 W m^-2 um^-1 = 1e-3 W m^-2 nm^-1 (1 um = 1000 nm, analytic); E = hc / lambda with
+# hc = 1239.84198 eV nm (CODATA 2018 through scipy.constants); per-energy densities become
+# per-wavelength ones with |dE/dlambda| = hc / lambda^2 = E / lambda (analytic).
+
+HC_EV_NM = sc.h * sc.c / sc.e * 1e9
+
+
+@pytest.mark.parametrize("text", [
+    "wavelength (nm),irradiance (W m^-2 nm^-1)\n400,1\n500,2\n600,0.5\n",
+    "Wavelength [um]\tGlobal irradiance [W m^-2 um^-1]\tnote\n0.4\t1000\tx\n0.5\t2000\ty\n0.6\t500\tz\n",
+    "wavelength [nm];irradiance [W/m2/nm]\n400;1\n500;2\n600;0,5\n",                 # decimal comma
+    "lambda_nm   irradiance_W_m2_nm\n400   1\n500   2\n600   0.5\n",                    # white space
+    "# lamp, measured\nwavelength (nm)  irradiance (W m-2 nm-1)\n600 0.5\n500 2\n400 1\n",  # falling rows
+    "\ufeffwavelength_nm,irradiance (mW cm^-2 nm^-1)\n400,0.1\n500,0.2\n600,0.05\n",     # BOM; 1 mW cm^-2 = 10 W m^-2
+])
+def test_read_spectrum_delimiters_aliases_and_units(tmp_path, text):
+    if "Global" in text:
+        p = _write(tmp_path, text, "s.tsv")
+        wl, E = light.read_spectrum(p, irradiance_column="Global irradiance")
+    else:
+        p = _write(tmp_path, text, "s.csv")
+        wl, E = light.read_spectrum(p)
+    np.testing.assert_allclose(wl, [400.0, 500.0, 600.0], rtol=1e-15)
+    np.testing.assert_allclose(E, [1.0, 2.0, 0.5], rtol=1e-14)
+
+
+def test_read_spectrum_energy_axis_uses_the_jacobian(tmp_path):
+    e = np.array([1.5, 2.0, 2.5, 3.0])
+    dens = np.array([1.0, 3.0, 2.0, 0.5])                       # W m^-2 eV^-1
+    p = _write(tmp_path, "energy [eV],irradiance [W m^-2 eV^-1]\n" + "".join(f"{a},{b}\n" for a, b in zip(e, dens)),
+               "e.csv")
+    wl, E = light.read_spectrum(p)
+    lam = HC_EV_NM / e
+    np.testing.assert_allclose(wl, lam[::-1], rtol=1e-12)
+    np.testing.assert_allclose(E, (dens * e / lam)[::-1], rtol=1e-12)
+    # the same column with a photon flux per eV: E_lambda = Phi_E (E / lambda) * hc / lambda [J] (analytic)
+    p2 = _write(tmp_path, "photon energy (eV),photon flux (cm^-2 s^-1 eV^-1)\n2,1e16\n3,1e16\n", "f.csv")
+    wl2, E2 = light.read_spectrum(p2)
+    lam2 = HC_EV_NM / np.array([3.0, 2.0])
+    want = 1e16 * 1e4 * (np.array([3.0, 2.0]) / lam2) * sc.h * sc.c / (lam2 * 1e-9)
+    np.testing.assert_allclose(E2, want, rtol=1e-12)
+
+
+def test_read_spectrum_column_choice_and_unit_keys(tmp_path):
+    p = _write(tmp_path, "a,b,c\n1,0.4,2\n2,0.5,4\n", "n.csv")
+    wl, E = light.read_spectrum(p, wavelength_column=2, irradiance_column="c", wavelength_unit="um",
+                                irradiance_unit="W m^-2 um^-1")
+    np.testing.assert_allclose(wl, [400.0, 500.0])
+    np.testing.assert_allclose(E, [2e-3, 4e-3], rtol=1e-14)
+    p2 = _write(tmp_path, "1,400\n2,500\n", "h.csv")                     # no header: columns 1 and 2 ...
+    wl, E = light.read_spectrum(p2, wavelength_column=2, irradiance_column=1, wavelength_unit="nm",
+                                irradiance_unit="W m^-2 nm^-1")
+    np.testing.assert_allclose(E, [1.0, 2.0])
+    with pytest.raises(InputError) as err:
+        light.read_spectrum(p, wavelength_column="z")
+    assert err.value.field == "light.wavelength_column" and "'a', 'b', 'c'" in str(err.value)
+
+
+def test_file_source_in_a_scenario_takes_the_column_keys(tmp_path):
+    (tmp_path / "lamp.tsv").write_text("Wavelength [um]\tE1 [W m^-2 um^-1]\tE2 [W m^-2 um^-1]\n0.4\t1000\t1\n0.5\t1000\t1\n")
+    s = light.source_from_table({"source": "file", "path": "lamp.tsv", "irradiance_column": "E1"}, tmp_path)
+    assert s.irradiance_W_m2 == pytest.approx(100.0, rel=1e-12)        # 1 W m^-2 nm^-1 over 100 nm (analytic)
+
+
+def test_spectrum_from_python_data():
+    wl = np.array([400.0, 500.0, 600.0])
+    E = np.array([1.0, 2.0, 0.5])
+    s = light.spectrum_from_data((wl, E))
+    np.testing.assert_array_equal(s.irradiance_W_m2_nm, E)
+    pd = pytest.importorskip("pandas")
+    s2 = light.spectrum_from_data(pd.Series(E, index=wl))
+    np.testing.assert_allclose(s2.irradiance_W_m2_nm, E, rtol=1e-15)
+    s3 = light.spectrum_from_data(pd.Series(E * 1e3, index=pd.Index(wl / 1e3, name="wavelength (um)"),
+                                            name="irradiance (W m^-2 um^-1)"))
+    np.testing.assert_allclose(s3.wavelength_nm, wl, rtol=1e-14)
+    np.testing.assert_allclose(s3.irradiance_W_m2_nm, E, rtol=1e-14)
+    df = pd.DataFrame({"energy [eV]": HC_EV_NM / wl, "irradiance [W m^-2 nm^-1]": E})
+    np.testing.assert_allclose(light.spectrum_from_data(df).irradiance_W_m2_nm, E, rtol=1e-12)
+    with pytest.raises(InputError, match="spectrum"):
+        light.spectrum_from_data((wl, E[:2]))

@@ -18,8 +18,30 @@ import pytest
 import xarray as xr
 from matplotlib.figure import Figure
 
-from optogen import plots
+from optogen import plots as _plots
 from optogen.constants import k_B_eV_K
+from optogen.scenario import dim_name, long_name, unit_of
+
+
+class _FigurePlots:
+    """optogen.plots, with each plot function's returned Axes turned into its Figure (the
+    structure checks below look at the whole figure); tests/test_notebook.py checks the Axes."""
+
+    def __getattr__(self, name):
+        f = getattr(_plots, name)
+        if callable(f) and name not in ("key_label", "pretty_unit", "axis_label", "split_unit", "save_figure",
+                                        "figure_of") and not name.startswith("_"):
+            return lambda *a, **k: _plots.figure_of(f(*a, **k))
+        return f
+
+
+plots = _FigurePlots()
+
+
+def _coord(key, values):
+    """A swept key's coordinate as the pipeline writes it: underscore name, CF attributes."""
+    values = np.asarray(values, float)
+    return dim_name(key), values, {"long_name": long_name(key), "units": unit_of(key), "scenario_key": key}
 from optogen.errors import InputError
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"  # PNG specification (ISO/IEC 15948), section 5.2
@@ -27,7 +49,7 @@ PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"  # PNG specification (ISO/IEC 15948), secti
 
 # ---------------------------------------------------------------- fixtures
 
-def _sweep_1d(key="light.suns", values=None, units="suns"):
+def _sweep_1d(key="light.suns", values=None, units=None):
     x = np.logspace(-3, 1, 21) if values is None else np.asarray(values, float)
     dn = 1e14 * x / x[0] ** 0.5
     data = {
@@ -36,8 +58,8 @@ def _sweep_1d(key="light.suns", values=None, units="suns"):
         "delta_n_cm3": dn,
         "np_over_ni2": 1e8 * (x / x[0]),
     }
-    return xr.Dataset({k: (key, v) for k, v in data.items()},
-                      coords={key: (key, x, {"units": units})})
+    dim, x, attrs = _coord(key, x)
+    return xr.Dataset({k: (dim, v) for k, v in data.items()}, coords={dim: (dim, x, attrs)})
 
 
 def _sweep_2d(ratio=None):
@@ -46,13 +68,12 @@ def _sweep_2d(ratio=None):
     s, t = np.meshgrid(suns, temp, indexing="ij")
     log_ratio = 0.05 + 0.8 * np.log10(s / suns[0]) + (350.0 - t) / 400.0
     r = 10.0 ** log_ratio if ratio is None else ratio
-    dims = ("light.suns", "absorber.temperature_K")
+    dims = ("light_suns", "absorber_temperature_K")
     return xr.Dataset(
         {"np_over_ni2": (dims, r),
          "splitting_eV": (dims, k_B_eV_K * t * np.log(10.0) * log_ratio),
          "implied_voc_V": (dims, k_B_eV_K * t * np.log(10.0) * log_ratio)},
-        coords={"light.suns": ("light.suns", suns, {"units": "suns"}),
-                "absorber.temperature_K": ("absorber.temperature_K", temp, {"units": "K"})})
+        coords={"light_suns": _coord("light.suns", suns), "absorber_temperature_K": _coord("absorber.temperature_K", temp)})
 
 
 def _detector_ds():
@@ -61,13 +82,13 @@ def _detector_ds():
     n0 = 5e14 + ni**2 / 5e14
     p0 = ni**2 / n0
     dn = 3e13
-    dim = "absorber.temperature_K"
+    dim = "absorber_temperature_K"
     return xr.Dataset(
         {"n0_cm3": (dim, n0), "p0_cm3": (dim, p0), "n_cm3": (dim, n0 + dn), "p_cm3": (dim, p0 + dn),
          "thermal_generation_cm3_s": (dim, p0 / 1e-6),
          "background_generation_cm3_s": (dim, np.full_like(temp, 1e18)),
          "conductivity_contrast": (dim, 3 * dn / n0)},
-        coords={dim: (dim, temp, {"units": "K"})})
+        coords={dim: _coord("absorber.temperature_K", temp)})
 
 
 def _main_axes(fig):
@@ -80,22 +101,25 @@ def _main_axes(fig):
 @pytest.mark.parametrize("key, label", [
     ("light.suns", "light: suns"),                           # brief's example (common practice)
     ("absorber.temperature_K", "absorber temperature (K)"),  # brief's example
-    ("absorber.donors_cm3", "absorber donors (cm⁻³)"),       # brief's example
-    ("recombination.front_J0_fA_cm2", "recombination front J0 (fA cm⁻²)"),
-    ("recombination.front_S_cm_s", "recombination front S (cm s⁻¹)"),
-    ("generation_cm3_s", "generation (cm⁻³ s⁻¹)"),
-    ("detector.responsivity_A_W", "detector responsivity (A W⁻¹)"),
-    ("background.field_of_view_deg", "background field of view (°)"),
+    ("absorber.donors_cm3", "absorber donors (cm^-3)"),       # brief's example
+    ("recombination.front_J0_fA_cm2", "recombination front J0 (fA cm^-2)"),
+    ("recombination.front_S_cm_s", "recombination front S (cm s^-1)"),
+    ("generation_cm3_s", "generation (cm^-3 s^-1)"),
+    ("detector.responsivity_A_W", "detector responsivity (A W^-1)"),
+    ("background.field_of_view_deg", "background field of view (degree)"),
 ])
 def test_key_label_turns_unit_suffix_into_unit(key, label):
     assert plots.key_label(key) == label
 
 
 @pytest.mark.parametrize("raw, shown", [
-    ("cm^-3 s^-1", "cm⁻³ s⁻¹"),  # common practice: superscript exponents
-    ("W m-2", "W m⁻²"),
-    ("um", "µm"),
-    ("ohm cm", "Ω cm"),
+    ("cm^-3 s^-1", "cm^-3 s^-1"),  # the one spelling: UDUNITS symbols, a caret before each exponent
+    ("W m-2", "W m^-2"),
+    ("cm⁻³ s⁻¹", "cm^-3 s^-1"),
+    ("um", "um"),
+    ("µm", "um"),
+    ("Ω cm", "ohm cm"),
+    ("A Hz^(-1/2)", "A Hz^(-1/2)"),
     ("K", "K"),
 ])
 def test_pretty_unit(raw, shown):
@@ -103,7 +127,7 @@ def test_pretty_unit(raw, shown):
 
 
 def test_axis_label_uses_units_attribute_for_unsuffixed_name():
-    assert plots.axis_label("light.photon_count", {"units": "cm^-2 s^-1"}) == "light: photon count (cm⁻² s⁻¹)"
+    assert plots.axis_label("light.photon_count", {"units": "cm^-2 s^-1"}) == "light photon count (cm^-2 s^-1)"
 
 
 # ---------------------------------------------------------------- sweeps
@@ -117,17 +141,17 @@ def test_sweep_lines_four_panels_with_units_and_log_scales():
     assert [ax.get_yscale() for ax in axes] == ["linear", "log", "log", "log"]
     assert axes[0].get_ylabel() == "implied Voc (V)"
     assert axes[1].get_ylabel() == "effective lifetime (s)"
-    assert "(cm⁻³)" in axes[2].get_ylabel()
+    assert "(cm^-3)" in axes[2].get_ylabel()
     assert "n_i,eff" in axes[3].get_ylabel()
     # 1e-3..10 suns is four decades: log x; the bottom row carries the x label
     assert all(ax.get_xscale() == "log" for ax in axes)
-    assert axes[2].get_xlabel() == axes[3].get_xlabel() == "irradiance (suns)"
+    assert axes[2].get_xlabel() == axes[3].get_xlabel() == "incident irradiance in suns (kW m^-2)"
     # plotted values are the data (no hidden rescaling)
     np.testing.assert_array_equal(axes[0].lines[0].get_ydata(), _sweep_1d()["implied_voc_V"].values)
 
 
 def test_sweep_lines_linear_temperature_axis():
-    ds = _sweep_1d("absorber.temperature_K", np.linspace(250, 350, 11), "K")
+    ds = _sweep_1d("absorber.temperature_K", np.linspace(250, 350, 11))
     fig = plots.sweep_lines(ds)
     # 250..350 K spans far less than two decades: linear axis
     assert fig.axes[2].get_xscale() == "linear"
@@ -150,9 +174,9 @@ def test_sweep_map_two_panels_with_colour_bars_and_labelled_contours():
     main = _main_axes(fig)
     assert len(main) == 2 and len(fig.axes) == 4  # two maps + two colour bars
     left, right = main
-    assert left.get_xlabel() == "irradiance (suns)" and left.get_xscale() == "log"
+    assert left.get_xlabel() == "incident irradiance in suns (kW m^-2)" and left.get_xscale() == "log"
     assert left.get_ylabel() == "temperature (K)" and left.get_yscale() == "linear"
-    assert "mass action" in left.get_title() and left.get_title().startswith("log10(n·p / n_i,eff²)")
+    assert "mass action" in left.get_title() and left.get_title().startswith("log10(n·p / n_i,eff^2)")
     assert right.get_title() == "implied Voc"
     cbar_labels = [ax.get_ylabel() for ax in fig.axes if ax.get_label() == "<colorbar>"]
     assert any("0 = mass action" in label for label in cbar_labels)
@@ -175,11 +199,11 @@ def test_sweep_map_labels_zero_decade_contour_when_crossed():
 
 def test_sweep_map_overflowed_ratio_recovered_from_splitting():
     # n·p/n_i,eff² = exp(Δμ/kT) (analytic); at 20 K a 1 eV splitting overflows float64
-    dims = ("light.suns", "absorber.temperature_K")
+    dims = ("light_suns", "absorber_temperature_K")
     temp = np.array([20.0, 30.0])
     split = np.array([[1.0, 1.0], [1.2, 1.2]])
     ds = xr.Dataset({"np_over_ni2": (dims, np.full((2, 2), np.inf)), "splitting_eV": (dims, split)},
-                    coords={"light.suns": ("light.suns", [1.0, 2.0]), "absorber.temperature_K": ("absorber.temperature_K", temp)})
+                    coords={"light_suns": _coord("light.suns", [1.0, 2.0]), "absorber_temperature_K": _coord("absorber.temperature_K", temp)})
     got = plots._log10_field(ds, "np_over_ni2")
     k = mpmath.mpf(k_B_eV_K)
     for i in range(2):
@@ -218,7 +242,7 @@ def test_lifetime_curve_log_log_and_operating_point():
     assert len(fig.axes) == 1
     ax = fig.axes[0]
     assert ax.get_xscale() == ax.get_yscale() == "log"
-    assert ax.get_xlabel() == "excess carrier density Δn (cm⁻³)" and ax.get_ylabel() == "lifetime (s)"
+    assert ax.get_xlabel() == "excess carrier density Δn (cm^-3)" and ax.get_ylabel() == "lifetime (s)"
     names = [t.get_text() for t in ax.get_legend().get_texts()]
     assert "SRH" in names and "Auger" in names
     assert "surfaces" not in names  # an infinite lifetime (no mechanism) is not drawn
@@ -233,7 +257,7 @@ def test_generation_profile_depth_in_um_and_average():
     fig = plots.generation_profile(depth, g)
     ax = fig.axes[0]
     assert len(fig.axes) == 1 and ax.get_yscale() == "log"
-    assert "(µm)" in ax.get_xlabel() and ax.get_ylabel() == "generation rate G (cm⁻³ s⁻¹)"
+    assert "(um)" in ax.get_xlabel() and ax.get_ylabel() == "generation rate G (cm^-3 s^-1)"
     np.testing.assert_allclose(ax.lines[0].get_xdata(), depth * 1e4)  # 1 cm = 1e4 µm (analytic)
     # the depth average of a uniform profile is the profile itself (analytic)
     assert ax.lines[1].get_ydata()[0] == pytest.approx(2.0e19, rel=1e-12)
@@ -255,8 +279,8 @@ def test_implied_jv_finds_maximum_power_point_and_annotates_ff():
     fig = plots.implied_jv(v, j, voc=0.715, ff=0.849)
     assert len(fig.axes) == 2  # current and power density (twin axis)
     ax, ax2 = fig.axes
-    assert ax.get_ylabel() == "current density J (mA cm⁻²)" and ax.get_xlabel() == "implied voltage (V)"
-    assert ax2.get_ylabel() == "power density (mW cm⁻²)"
+    assert ax.get_ylabel() == "current density J (mA cm^-2)" and ax.get_xlabel() == "implied voltage (V)"
+    assert ax2.get_ylabel() == "power density (mW cm^-2)"
     i = int(np.argmax(v * j))
     marker = [ln for ln in ax.lines if ln.get_marker() == "o"][0]
     assert marker.get_xdata()[0] == v[i] and marker.get_ydata()[0] == j[i]
@@ -299,7 +323,7 @@ def test_detector_densities_one_log_axis_four_curves():
     fig = plots.detector_densities(_detector_ds())
     ax = fig.axes[0]
     assert len(fig.axes) == 1 and ax.get_yscale() == "log" and ax.get_xscale() == "linear"
-    assert ax.get_xlabel() == "temperature (K)" and ax.get_ylabel() == "carrier density (cm⁻³)"
+    assert ax.get_xlabel() == "temperature (K)" and ax.get_ylabel() == "carrier density (cm^-3)"
     names = [t.get_text() for t in ax.get_legend().get_texts()]
     assert len(names) == 4
     assert "electrons (majority), dark n₀" in names  # n0 = 5e14 >> p0: n-type
@@ -316,7 +340,7 @@ def test_detector_generation_marks_crossing():
     fig = plots.detector_generation(ds, crossing=152.4)
     ax = fig.axes[0]
     assert len(fig.axes) == 1 and ax.get_yscale() == "log"
-    assert ax.get_ylabel() == "generation rate (cm⁻³ s⁻¹)"
+    assert ax.get_ylabel() == "generation rate (cm^-3 s^-1)"
     vertical = [ln for ln in ax.lines if np.all(np.asarray(ln.get_xdata()) == 152.4)]
     assert len(vertical) == 1
     assert any("152.4 K" in t.get_text() for t in ax.texts)
@@ -335,13 +359,13 @@ def test_detector_contrast_log_axis_with_label():
     fig = plots.detector_contrast(_detector_ds())
     ax = fig.axes[0]
     assert len(fig.axes) == 1 and ax.get_yscale() == "log"
-    assert ax.get_ylabel() == "conductivity contrast Δσ/σ₀" and ax.get_xlabel() == "temperature (K)"
+    assert ax.get_ylabel() == "conductivity contrast Δσ/σ0" and ax.get_xlabel() == "temperature (K)"
 
 
 def test_detector_power_sweep_uses_log_x():
     power = np.logspace(-9, -3, 13)
-    dim = "light.power_W"
-    ds = xr.Dataset({"conductivity_contrast": (dim, power * 1e3)}, coords={dim: (dim, power, {"units": "W"})})
+    dim = "light_power_W"
+    ds = xr.Dataset({"conductivity_contrast": (dim, power * 1e3)}, coords={dim: _coord("light.power_W", power)})
     ax = plots.detector_contrast(ds).axes[0]
     assert ax.get_xscale() == "log" and ax.get_xlabel() == "light power (W)"
 
@@ -357,13 +381,13 @@ def test_depth_profile_panels():
     fig = plots.depth_profile(depth, dn, g, efn, efp, bandgap_eV=1.12)
     assert len(fig.axes) == 3
     top, mid, bottom = fig.axes
-    assert top.get_yscale() == "log" and "(cm⁻³ s⁻¹)" in top.get_ylabel()
-    assert "cm⁻³" in mid.get_ylabel() and mid.get_ylabel().startswith("Δn")
-    assert bottom.get_ylabel().endswith("(eV)") and "µm" in bottom.get_xlabel()
+    assert top.get_yscale() == "log" and "(cm^-3 s^-1)" in top.get_ylabel()
+    assert "cm^-3" in mid.get_ylabel() and mid.get_ylabel().startswith("Δn")
+    assert bottom.get_ylabel().endswith("(eV)") and "um" in bottom.get_xlabel()
     # one shared depth axis
     assert top.get_shared_x_axes().joined(top, bottom)
     # Δn spans less than a decade: linear, scaled by 10^15 in the label; values unchanged otherwise
-    assert mid.get_ylabel() == "Δn (10¹⁵ cm⁻³)"
+    assert mid.get_ylabel() == "Δn (10^15 cm^-3)"
     np.testing.assert_allclose(mid.lines[0].get_ydata() * 1e15, dn, rtol=1e-12)
     assert len(plots.depth_profile(depth, dn, g).axes) == 2
 
@@ -388,7 +412,7 @@ def test_save_figure_failure_leaves_old_file_and_no_temporary(tmp_path):
             raise RuntimeError("disk full")
 
     with pytest.raises(RuntimeError):
-        plots.save_figure(Broken(), target)
+        _plots.save_figure(Broken(), target)
     assert target.read_bytes() == b"old"
     assert os.listdir(tmp_path) == ["fig.png"]
 
@@ -417,7 +441,7 @@ def test_sweep_lines_draws_a_one_value_sweep_as_one_point():
 
 
 def test_sweep_lines_squeezes_one_value_second_key():
-    ds = _sweep_1d().expand_dims({"absorber.thickness_um": [160.0]})
+    ds = _sweep_1d().expand_dims({"absorber_thickness_um": [160.0]})
     fig = plots.sweep_lines(ds)
     assert fig.axes[0].lines[0].get_xdata().size == 21
 

@@ -8,9 +8,8 @@ from optogen import materials
 from optogen.constants import kT_eV, q_C
 from optogen.equilibrium import bgn_eV, equilibrium
 from optogen.errors import InputError
-from optogen.recombination import (DEFECTS, Defect, Recombination, auger_constant, auger_dziewior_schmid1977,
-                                   defect_from_table, excess_product_cm6, intrinsic_kerr_cuevas2002,
-                                   intrinsic_richter2012, radiative_b_trupke2003, srh_shockley_read_hall1952,
+from optogen.recombination import (DEFECTS, Defect, Recombination, defect_from_table, excess_product_cm6,
+                                   intrinsic_rates_cm3_s, radiative_b_trupke2003, srh_shockley_read_hall1952,
                                    surface_j0)
 
 SI = materials.get("Si")
@@ -100,7 +99,7 @@ def test_richter2012_hand_worked_n_type():
     # g_eeh = 1 + 13 (1 - tanh((1e15/3.3e17)^0.66)) = 1 + 13 (1 - tanh(0.021765)) = 13.7171
     # 2.5e-31 g_eeh n0 = 3.4293e-15;  3.0e-29 dn^0.92 = 3e-29 * 6.3096e13 = 1.8929e-15; B_low = 4.73e-15
     # sum = 1.00521e-14 -> U = 2.01043e16 -> tau = 1e15 / 2.01043e16 = 4.9741e-2 s
-    aug, rad = intrinsic_richter2012(1e15, 1e5, 1e15, T_K=300.0)
+    aug, rad = intrinsic_rates_cm3_s("richter2012", 1e15, 1e5, 1e15, T_K=300.0)
     assert 1e15 / (aug + rad) == pytest.approx(4.9741e-2, rel=2e-4)    # hand rounding
     # shares: radiative part is B_low (n p - ni^2) (analytic split)
     assert rad == pytest.approx(4.73e-15 * 2e30, rel=1e-6)
@@ -110,7 +109,7 @@ def test_richter2012_hand_worked_p_type():
     # Richter 2012 (from memory), p0 = 1e16, n0 = 1e4, dn = 1e14: n p - ni^2 = (p0 + dn) dn = 1.01e30
     # g_ehh = 1 + 7.5 (1 - tanh((1e16/7e17)^0.63)) = 7.98481; 8.5e-32 g_ehh p0 = 6.7871e-15
     # 3.0e-29 (1e14)^0.92 = 2.2757e-16; + 4.73e-15 -> 1.17447e-14; U = 1.18621e16; tau = 8.4302e-3 s
-    aug, rad = intrinsic_richter2012(1e4, 1e16, 1e14, T_K=300.0)
+    aug, rad = intrinsic_rates_cm3_s("richter2012", 1e4, 1e16, 1e14, T_K=300.0)
     assert 1e14 / (aug + rad) == pytest.approx(8.4302e-3, rel=2e-4)
 
 
@@ -118,22 +117,25 @@ def test_kerr_cuevas2002_hand_worked():
     # Kerr & Cuevas 2002, JAP 91, 2473 (from memory): n0 = 1e15, p0 = 1e5, dn = 1e15, n p = 2e30
     # 1.8e-24 (1e15)^0.65 = 1.8e-24 * 5.6234e9 = 1.01221e-14; 6e-25 (1e5)^0.65 = 1.1e-21 (negligible)
     # 3e-27 (1e15)^0.8 = 3.0e-15; + 9.5e-15 -> 2.26221e-14; U = 4.52443e16; tau = 2.2102e-2 s
-    aug, rad = intrinsic_kerr_cuevas2002(1e15, 1e5, 1e15)
+    aug, rad = intrinsic_rates_cm3_s("kerr_cuevas2002", 1e15, 1e5, 1e15)
     assert 1e15 / (aug + rad) == pytest.approx(2.2102e-2, rel=2e-4)
     # p-type 1e16, dn = 1e14: 6e-25 (1e16)^0.65 = 1.50713e-14; 3e-27 (1e14)^0.8 = 4.7547e-16;
     # + 9.5e-15 -> 2.50468e-14; n p = 1.01e30 -> tau = 1e14 / 2.52973e16 = 3.9530e-3 s
-    aug, rad = intrinsic_kerr_cuevas2002(1e4, 1e16, 1e14)
+    aug, rad = intrinsic_rates_cm3_s("kerr_cuevas2002", 1e4, 1e16, 1e14)
     assert 1e14 / (aug + rad) == pytest.approx(3.9530e-3, rel=2e-4)
 
 
 def test_dziewior_schmid_high_injection_ambipolar():
     # Dziewior & Schmid 1977: Cn = 2.8e-31, Cp = 9.9e-32 cm^6/s; high injection tau = 1/((Cn + Cp) dn^2) (analytic)
     dn = 1e18
-    assert dn / auger_dziewior_schmid1977(1e3, 1e3, dn) == pytest.approx(1 / ((2.8e-31 + 9.9e-32) * dn**2), rel=1e-9)
+    auger = intrinsic_rates_cm3_s("dziewior_schmid1977", 1e3, 1e3, dn)[0]
+    assert dn / auger == pytest.approx(1 / ((2.8e-31 + 9.9e-32) * dn**2), rel=1e-9)
     # low injection n-type: tau = 1/(Cn n0^2) (analytic)
-    assert 1e10 / auger_dziewior_schmid1977(1e18, 1e2, 1e10) == pytest.approx(1 / (2.8e-31 * 1e36), rel=1e-6)
-    assert auger_constant(1e18, 1e2, 1e10, 2.8e-31, 9.9e-32) == pytest.approx(
-        auger_dziewior_schmid1977(1e18, 1e2, 1e10), rel=1e-12)
+    auger = intrinsic_rates_cm3_s("dziewior_schmid1977", 1e18, 1e2, 1e10)[0]
+    assert 1e10 / auger == pytest.approx(1 / (2.8e-31 * 1e36), rel=1e-6)
+    # the "constant" model with the Si record's Cn, Cp (Dziewior & Schmid 1977 values) is the same formula
+    assert SI.auger_Cn_cm6_s == 2.8e-31 and SI.auger_Cp_cm6_s == 9.9e-32
+    assert intrinsic_rates_cm3_s("constant", 1e18, 1e2, 1e10, material=SI)[0] == pytest.approx(auger, rel=1e-12)
 
 
 def test_rates_split_matches_published_total():
@@ -142,7 +144,7 @@ def test_rates_split_matches_published_total():
     eq = equilibrium(SI, 300.0, 1e15, 0.0, bgn_model="none")
     r = Recombination(bgn_model="none").rates(SI, eq, 1e15, W)
     n0, p0 = float(eq.n0_cm3), float(eq.p0_cm3)
-    aug, rad = intrinsic_richter2012(n0, p0, 1e15, 300.0)
+    aug, rad = intrinsic_rates_cm3_s("richter2012", n0, p0, 1e15, 300.0)
     assert r["auger"] == pytest.approx(aug, rel=1e-12)
     assert r["radiative"] == pytest.approx(rad, rel=1e-12)
     assert r["srh"] == 0 and r["surface"] == 0

@@ -145,27 +145,27 @@ def _sweep(spec):
 
 def test_sweep_of_depth_resolved_matches_single_points():
     ds = optogen.run(_sweep("[false, true]"), progress=False).to_dataset()
-    assert dict(ds.sizes) == {"solver.depth_resolved": 2, "light.power_W": 2}
+    assert dict(ds.sizes) == {"solver_depth_resolved": 2, "light_power_W": 2}
     for flag in (False, True):
         one = run_dict(VIOLET.replace("depth_resolved = true", f"depth_resolved = {str(flag).lower()}")
                        .replace("power_W = 0.01", "power_W = 0.001"))
-        got = ds["delta_n_cm3"].sel({"solver.depth_resolved": flag, "light.power_W": 0.001}).item()
+        got = ds["delta_n_cm3"].sel({"solver_depth_resolved": flag, "light_power_W": 0.001}).item()
         assert got == pytest.approx(one["steady_state"]["delta_n_cm3"], rel=1e-12)
 
 
 def test_sweep_of_depth_resolved_keeps_the_profile_block():
     ds = optogen.run(_sweep("[false, true]"), progress=False).to_dataset()
     err = ds["uniform_error_average_delta_n"]
-    assert np.all(np.isnan(err.sel({"solver.depth_resolved": False}).values))
-    assert np.all(np.abs(err.sel({"solver.depth_resolved": True}).values) > 0.10)   # as the violet check
+    assert np.all(np.isnan(err.sel({"solver_depth_resolved": False}).values))
+    assert np.all(np.abs(err.sel({"solver_depth_resolved": True}).values) > 0.10)   # as the violet check
 
 
 def test_sweep_of_depth_resolved_true_first_runs():
     ds = optogen.run(_sweep("[true, false]"), progress=False).to_dataset()
-    assert ds.sizes["solver.depth_resolved"] == 2
+    assert ds.sizes["solver_depth_resolved"] == 2
     err = ds["uniform_error_average_delta_n"]
-    assert np.all(np.isnan(err.sel({"solver.depth_resolved": False}).values))     # null where uniform
-    assert np.all(np.abs(err.sel({"solver.depth_resolved": True}).values) > 0.10)
+    assert np.all(np.isnan(err.sel({"solver_depth_resolved": False}).values))     # null where uniform
+    assert np.all(np.abs(err.sel({"solver_depth_resolved": True}).values) > 0.10)
 
 
 def test_depth_resolved_steady_state_keeps_its_convergence_flag():

@@ -4,6 +4,8 @@ These check behaviour the scenario format in DESIGN.md prescribes (a
 project contract, not physics), so the expected values come from that
 document or from plain arithmetic.
 """
+from pathlib import Path
+
 import numpy as np
 import pytest
 
@@ -93,9 +95,12 @@ def test_parse_value_toml_then_string():
     assert parse_value("AM1.5G") == "AM1.5G"
 
 
-@pytest.mark.parametrize("key,unit", [("absorber.temperature_K", "K"), ("absorber.donors_cm3", "cm-3"),
-                                      ("light.suns", "suns"), ("generation_average_cm3_s", "cm-3 s-1"),
-                                      ("photocurrent_mA_cm2", "mA cm-2"), ("implied_voc_V", "V")])
+# one spelling, UDUNITS symbols with a caret before each exponent (tests/test_units.py parses them);
+# suns as kW m^-2: 1 sun = 1000 W m^-2 (IEC 60904-3, common practice)
+@pytest.mark.parametrize("key,unit", [("absorber.temperature_K", "K"), ("absorber.donors_cm3", "cm^-3"),
+                                      ("light.suns", "kW m^-2"), ("generation_average_cm3_s", "cm^-3 s^-1"),
+                                      ("photocurrent_mA_cm2", "mA cm^-2"), ("implied_voc_V", "V"),
+                                      ("detectivity_cm_Hz05_W", "cm Hz^(1/2) W^-1")])
 def test_unit_from_key_suffix(key, unit):
     assert unit_of(key) == unit
 
@@ -135,3 +140,24 @@ def test_linear_sweep_whose_span_overflows_is_an_input_error():
     with np.errstate(all="raise"):                 # no overflow may happen on the way to the error
         with pytest.raises(InputError, match="finite"):
             load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = { linear = [1e308, -1e308], points = 2 }\n')
+
+
+def test_to_toml_gives_back_the_effective_scenario():
+    import glob
+    text = BASE + '[[recombination.defects]]\nname = "Fe_i"\ndensity_cm3 = 1e10\n\n[sweep]\n"absorber.temperature_K" = [250, 300]\n'
+    sc = load_scenario(text).with_values({"recombination.defects.0.density_cm3": 1e12})
+    back = load_scenario(sc.to_toml())
+    assert back.data == sc.data and back.get("recombination.defects.0.density_cm3") == 1e12
+    assert [a.key for a in back.sweep] == ["absorber.temperature_K"]
+    np.testing.assert_array_equal(back.sweep[0].values, sc.sweep[0].values)
+    root = Path(__file__).resolve().parents[1] / "scenarios"
+    for f in sorted(glob.glob(str(root / "*.toml"))):              # every demo round-trips
+        a = load_scenario(f)
+        b = load_scenario(a.to_toml(), base_dir=a.base_dir)
+        assert b.data == a.data, f
+
+
+def test_scenario_repr_is_short():
+    sc = load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = [250, 300, 350]\n')
+    assert len(repr(sc)) < 300 and "3 points" in repr(sc)
+    assert "<table>" in sc._repr_html_()

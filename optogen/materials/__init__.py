@@ -17,7 +17,7 @@ materials (`BUILTIN`, `ALIASES`, `names`, `get`) and re-exports the public names
 """
 from __future__ import annotations
 
-from .._dispatch import normalise
+from ..registry import normalise
 from ..errors import InputError, did_you_mean
 from .record import Dopant, CaugheyThomas, Material
 from .relations import (bandgap_hansen1982, electron_mass_weiler1981, mean_thermal_speed_cm_s,

@@ -45,7 +45,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .. import constants as C
-from .._dispatch import normalise
+from ..registry import normalise
 from ..errors import InputError, check_range, did_you_mean
 from .record import Material
 from .custom import _page_tuple

@@ -8,10 +8,10 @@ from typing import Mapping
 
 import numpy as np
 
-from .._dispatch import pick
+from .. import registry
 from ..constants import NC_M0_300K_cm3
 from ..errors import InputError, did_you_mean
-from .relations import (_AUGER_MODELS, _RADIATIVE_MODELS, bandgap_hansen1982, electron_mass_weiler1981, mean_thermal_speed_cm_s)
+from .relations import bandgap_hansen1982, electron_mass_weiler1981, mean_thermal_speed_cm_s
 
 
 @dataclass(frozen=True)
@@ -155,8 +155,7 @@ class Material:
     def radiative_coefficient_cm3_s(self, T_K):
         """Band-to-band radiative coefficient B(T) [cm^3/s] at T_K [K] per `radiative_model`."""
         T = np.asarray(T_K, dtype=float)
-        fn = pick("absorber.custom.radiative_model", self.radiative_model, _RADIATIVE_MODELS)
-        return fn(self, T)
+        return registry.pick("radiative", self.radiative_model, "absorber.custom.radiative_model").call(self, T)
 
     def auger_coefficients_cm6_s(self, T_K):
         """Auger coefficients (Cn, Cp) [cm^6/s] at T_K [K] per `auger_model`.
@@ -164,8 +163,7 @@ class Material:
         The Auger rate is (Cn n + Cp p)(n p - n_i^2).
         """
         T = np.asarray(T_K, dtype=float)
-        fn = pick("absorber.custom.auger_model", self.auger_model, _AUGER_MODELS)
-        return fn(self, T)
+        return registry.pick("auger", self.auger_model, "absorber.custom.auger_model").call(self, T)
 
     # -- dopants ----------------------------------------------------------
     def dopant(self, name: str, field: str = "absorber.dopant_species") -> Dopant:

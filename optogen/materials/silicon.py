@@ -6,6 +6,15 @@ from .record import CaugheyThomas, Dopant, Material
 from ._shared import _GREEN1990, _SZE, _THURMOND, _mass_from_dos, _varshni_sources
 
 
+#: Doping- and temperature-dependent mobility of Si in the Caughey-Thomas form: electrons from the
+#: phosphorus set, holes from the boron set of Masetti, Severi & Solmi 1983 (mu_min, mu_max, N_ref,
+#: alpha; from memory), lattice exponents theta of Klaassen 1992 part I (from memory).  The one
+#: definition of these constants: `optogen.transport` builds its Klaassen 1992 and Masetti 1983
+#: parameter sets from them.
+MOBILITY_E_SI = CaugheyThomas(68.5, 1414.0, 9.20e16, 0.711, 2.285, 0.0)
+MOBILITY_H_SI = CaugheyThomas(44.9, 470.5, 2.23e17, 0.719, 2.247, 0.0)
+
+
 SILICON = Material(
     name="Si",
     eg0_eV=1.170, varshni_alpha_eV_K=4.73e-4, varshni_beta_K=636.0,
@@ -25,8 +34,8 @@ SILICON = Material(
     radiative_B_cm3_s=4.73e-15,
     auger_Cn_cm6_s=2.8e-31, auger_Cp_cm6_s=9.9e-32,
     mobility_model="klaassen1992",
-    mobility_e=CaugheyThomas(68.5, 1414.0, 9.20e16, 0.711, 2.285, 0.0),
-    mobility_h=CaugheyThomas(44.9, 470.5, 2.23e17, 0.719, 2.247, 0.0),
+    mobility_e=MOBILITY_E_SI,
+    mobility_h=MOBILITY_H_SI,
     refractive_index=3.42,
     optical_page=("main", "Si", "Green-2008"),
     ni_model="misiakos1993", bgn_model="schenk1998", direct_gap=False,

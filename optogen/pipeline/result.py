@@ -1,20 +1,32 @@
 """Pipeline, step 3: labelling. Output blocks -> an xarray Dataset and a `Result`.
 
 Block dictionaries ({"steady_state": {"delta_n_cm3": array, ...}}) become Dataset variables
-with units; `Result` carries the Dataset, a single point's details and the run's warnings.
+that follow the CF conventions (1.10): names of letters, digits and underscores (a swept key
+"light.suns" is the dimension "light_suns", its dotted key in the attribute ``scenario_key``),
+``long_name`` on every variable (the labels the plots use, `optogen.scenario.LONG_NAMES`),
+``units`` in the one caret spelling of `optogen.scenario.UNIT_SUFFIXES` on every number
+(strings and flags carry none).  `Result` carries the Dataset, a single point's details and
+the run's warnings.  `ChunkStore` writes a large sweep straight to a chunked, compressed
+NetCDF4 file, chunk by chunk, so that memory is bounded by the chunk.
 """
 from __future__ import annotations
 
 import datetime as _dt
 import math
+import sys
 from dataclasses import dataclass, field
-from typing import Any, Mapping
+from pathlib import Path
+from typing import Any, Mapping, Sequence
 
 import numpy as np
 import xarray as xr
 
 from .._version import __version__
-from ..scenario import Scenario, unit_of
+from ..errors import InputError
+from ..scenario import Scenario, dim_name, long_name, unit_of
+
+#: the CF version the files follow (global attribute ``Conventions``)
+CONVENTIONS = "CF-1.10"
 
 
 #: Dataset variable names where the JSON key alone would be unclear or clash
@@ -72,12 +84,110 @@ class Result:
     details: Mapping[str, Any] = field(default_factory=dict)
     warnings: tuple[str, ...] = ()
 
+    def __post_init__(self):
+        tidy_attrs(self.dataset)
+
     @property
     def is_sweep(self) -> bool:
         return bool(self.scenario.sweep)
 
     def to_dataset(self) -> xr.Dataset:
         return self.dataset
+
+    def to_dataframe(self):
+        """A pandas DataFrame: one row per grid point (a single point: one row), one column per
+        swept key (underscore names, the last key varying fastest) then one per variable; the
+        same table as result.csv."""
+        import pandas as pd
+        return pd.DataFrame(tidy_columns(self.dataset))
+
+    def plot(self, kind: str | None = None, ax=None):
+        """Draw the figure that fits the result and return its Axes (an array for several panels).
+
+        kind: None picks: a single point -> "lifetime" (the lifetime curve; "band" without
+        one); one swept key -> "detectivity" for a detector with a source, else "lines"; two
+        swept keys -> "map".  Others: "jv", "generation", "band", "noise", "dark_current".
+        ax: a matplotlib Axes to draw into (a sequence of Axes for several panels); None
+        makes a new figure.
+        """
+        from .. import plots
+        from ..report import point_curves
+        ds = self.dataset
+        dims = [d for d in ds.dims if ds.sizes[d] > 1] or list(ds.dims)[:1]
+        if kind is None:
+            if not self.is_sweep:
+                kind = "lifetime" if "lifetime_curve" in self.details else "band"
+            elif len(dims) == 1:
+                kind = ("detectivity" if "detectivity_cm_Hz05_W" in ds
+                        and np.isfinite(np.asarray(ds["detectivity_cm_Hz05_W"].values, float)).any() else "lines")
+            elif len(dims) == 2:
+                kind = "map"
+            else:
+                raise InputError("Result.plot.kind", None, "a kind for a sweep of three or more keys",
+                                 "select two keys, e.g. res.dataset.isel(...), and use optogen.plots.sweep_map")
+        sweep_kinds = {"lines": plots.sweep_lines, "map": plots.sweep_map, "detectivity": plots.detector_detectivity,
+                       "noise": plots.detector_noise, "dark_current": plots.detector_dark_current,
+                       "responsivity": plots.detector_responsivity, "nep": plots.detector_nep}
+        if kind in sweep_kinds:
+            return sweep_kinds[kind](ds, ax=ax)
+        det, curves = self.details, point_curves(self)
+        first = lambda a: float(np.ravel(a)[0])       # noqa: E731
+        if kind == "lifetime" and "lifetime_curve" in curves:
+            c = curves["lifetime_curve"]
+            return plots.lifetime_curve(c["delta_n_cm3"], {k[4:-2]: v for k, v in c.items() if k.startswith("tau_")},
+                                        operating_dn=first(det["steady_state"].delta_n_cm3), ax=ax)
+        if kind == "jv" and "implied_jv" in curves:
+            jv = det["implied_jv"]
+            return plots.implied_jv(curves["implied_jv"]["voltage_V"], curves["implied_jv"]["current_mA_cm2"],
+                                    vmp=first(jv.vmp_V), jmp=first(jv.jmp_mA_cm2), voc=first(jv.voc_V),
+                                    ff=first(jv.ff), ax=ax)
+        if kind == "generation" and "generation_profile" in curves:
+            c = curves["generation_profile"]
+            return plots.generation_profile(c["depth_cm"], c["generation_cm3_s"], ax=ax)
+        if kind == "band" and "equilibrium" in det:
+            eq, ss = det["equilibrium"], det.get("steady_state")
+            return plots.band_diagram(first(eq.effective_gap_eV), first(eq.fermi_level_eV),
+                                      first(ss.electron_qfl_eV) if ss is not None else None,
+                                      first(ss.hole_qfl_eV) if ss is not None else None,
+                                      intrinsic_level_eV=first(eq.intrinsic_level_eV), ax=ax)
+        raise InputError("Result.plot.kind", kind, "for a single point: lifetime, jv, generation, band; for a "
+                         "sweep: lines (one key), map (two keys), detectivity, noise, dark_current, responsivity, nep")
+
+    def __repr__(self) -> str:
+        ds = self.dataset
+        if self.is_sweep:
+            what = "sweep " + " x ".join(f"{d} ({ds.sizes[d]})" for d in ds.dims) + f" = {self.scenario.n_points} points"
+        else:
+            shown = [f"{k} = {float(ds[k]):.4g} {ds[k].attrs.get('units', '')}".rstrip()
+                     for k in ("implied_voc_V", "tau_eff_s", "delta_n_cm3") if k in ds and ds[k].ndim == 0]
+            what = "single point" + (": " + ", ".join(shown) if shown else "")
+        warn = f"; {len(self.warnings)} warning(s)" if self.warnings else ""
+        return f"Result({self.scenario.title!r}, {what}; {len(ds.data_vars)} variables{warn})"
+
+    def _repr_html_(self) -> str:
+        import html
+        ds = self.dataset
+        rows = []
+        for name, da in ds.data_vars.items():
+            if da.ndim == 0:
+                v = da.values.item()
+                value = f"{v:.5g}" if isinstance(v, float) else str(v)
+            else:
+                value = "[" + " x ".join(str(ds.sizes[d]) for d in da.dims) + "]"
+            rows.append(f"<tr><td><code>{html.escape(str(name))}</code></td><td>{html.escape(value)}</td>"
+                        f"<td>{html.escape(str(da.attrs.get('units', '')))}</td>"
+                        f"<td>{html.escape(str(da.attrs.get('long_name', '')))}</td></tr>")
+        dims = "".join(f"<li><code>{html.escape(str(d))}</code> ({html.escape(str(ds[d].attrs.get('scenario_key', d)))}): "
+                       f"{ds.sizes[d]} values, {float(ds[d].min()):.4g} .. {float(ds[d].max()):.4g} "
+                       f"{html.escape(str(ds[d].attrs.get('units', '')))}</li>" for d in ds.dims
+                       if ds[d].dtype.kind in "fiu")
+        warn = "".join(f"<li>{html.escape(w)}</li>" for w in self.warnings)
+        return (f"<div><b>optogen Result</b>: {html.escape(self.scenario.title)}"
+                + (f"<ul>{dims}</ul>" if dims else " (single point)")
+                + (f"<p>warnings:</p><ul>{warn}</ul>" if warn else "")
+                + f"<details><summary>{len(ds.data_vars)} variables</summary><table>"
+                  "<tr><th>name</th><th>value</th><th>units</th><th>long_name</th></tr>"
+                + "".join(rows) + "</table></details></div>")
 
     def to_dict(self) -> dict:
         """Nested JSON-ready blocks (DESIGN.md keys); null where a quantity does not apply."""
@@ -111,8 +221,28 @@ def _jsonable(a):
     return [_jsonable(x) for x in a]
 
 
+def var_attrs(name: str, values: np.ndarray, block: str | None = None, key: str | None = None) -> dict:
+    """CF attributes of a Dataset variable: long_name, units (numbers only), block and key."""
+    attrs = {"long_name": long_name(name)}
+    if np.asarray(values).dtype.kind not in "bOUS":
+        attrs["units"] = unit_of(name)
+    if block:
+        attrs.update(block=block, key=key)
+    return attrs
+
+
+def coord_attrs(key: str, values: np.ndarray) -> dict:
+    """CF attributes of the coordinate of a swept key: long_name, units (numbers), scenario_key."""
+    attrs = {"long_name": long_name(key)}
+    if np.asarray(values).dtype.kind in "fiu":
+        attrs["units"] = unit_of(key)
+    attrs["scenario_key"] = key
+    return attrs
+
+
 def labelled_dataset(blocks, shape, axes) -> xr.Dataset:
-    dims = [a.key for a in axes] if axes else ["point"]
+    """Blocks of flat arrays -> a Dataset over the sweep axes (a "point" dimension without axes)."""
+    dims = [dim_name(a.key) for a in axes] if axes else ["point"]
     shape = list(shape) if axes else [-1]
     data_vars = {}
     for block, vals in blocks.items():
@@ -121,17 +251,225 @@ def labelled_dataset(blocks, shape, axes) -> xr.Dataset:
             arr = np.asarray(arr)
             if name == "converged":
                 arr = arr.astype(bool)
-            data_vars[name] = (dims, arr.reshape(shape),
-                               {"units": unit_of(name), "block": block, "key": key})
-    coords = {a.key: (a.key, a.values, {"units": a.unit}) for a in axes} if axes else {}
+            data_vars[name] = (dims, arr.reshape(shape), var_attrs(name, arr, block, key))
+    coords = {dim_name(a.key): (dim_name(a.key), a.values, coord_attrs(a.key, a.values)) for a in axes} if axes else {}
     return xr.Dataset(data_vars, coords=coords)
 
 
-def add_attrs(ds: xr.Dataset, sc: Scenario) -> None:
+def tidy_attrs(ds: xr.Dataset) -> None:
+    """Make every variable of `ds` carry CF attributes, in place: a long_name everywhere, no
+    units on strings and flags (booleans), units from the name elsewhere when missing."""
+    for name, var in ds.variables.items():
+        attrs = var.attrs
+        attrs.setdefault("long_name", long_name(attrs.get("scenario_key", name)))
+        if var.dtype.kind in "bOUS":
+            attrs.pop("units", None)
+        elif "units" not in attrs:
+            attrs["units"] = unit_of(attrs.get("scenario_key", name))
+
+
+def add_attrs(ds: xr.Dataset, sc: Scenario, history: str | None = None) -> None:
+    """Global attributes: Conventions, title, source, history, the original and the effective scenario.
+
+    history: the line to record (default: the time and the command line of this process)
+    """
+    created = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
     ds.attrs.update({
+        "Conventions": CONVENTIONS,
         "title": sc.title,
+        "source": f"optogen {__version__}",
+        "history": history or f"{created} {command_line()}",
         "scenario": sc.text,
+        "scenario_effective": sc.to_toml(),
         "optogen_version": __version__,
-        "created": _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds"),
+        "created": created,
         "swept_keys": ", ".join(a.key for a in sc.sweep) or "(single point)",
     })
+    tidy_attrs(ds)
+
+
+def command_line() -> str:
+    """This process's command line, as the ``history`` attribute records it."""
+    import shlex
+    argv = list(sys.argv)
+    if argv and Path(argv[0]).name in ("optogen", "__main__.py", "cli.py"):
+        argv[0] = "optogen"
+    return shlex.join(argv) if argv and argv[0] else "python (optogen.run)"
+
+
+def tidy_columns(ds: xr.Dataset) -> dict[str, np.ndarray]:
+    """The tidy table of a Dataset as flat columns, built from arrays (no loop over rows).
+
+    One entry per dimension coordinate (the grid values, C order: the last dimension varies
+    fastest) then one per data variable, each a 1-D array of the grid size; a scalar
+    variable is repeated on every row.
+    """
+    dims = list(ds.dims)
+    shape = tuple(ds.sizes[d] for d in dims)
+    n = int(np.prod(shape)) if dims else 1
+    cols: dict[str, np.ndarray] = {}
+    for i, d in enumerate(dims):
+        idx = [None] * len(dims)
+        idx[i] = slice(None)
+        cols[d] = np.broadcast_to(np.asarray(ds[d].values)[tuple(idx)], shape).reshape(n)
+    for name, da in ds.data_vars.items():
+        values = np.asarray(da.transpose(*[d for d in dims if d in da.dims]).values)
+        if da.ndim < len(dims):
+            expand = tuple(slice(None) if d in da.dims else None for d in dims)
+            values = values[expand]
+        cols[name] = np.broadcast_to(values, shape).reshape(n)
+    return cols
+
+
+# ---------------------------------------------------------------------------
+# Large sweeps: chunk by chunk to a chunked, compressed NetCDF4 file
+# ---------------------------------------------------------------------------
+
+#: sweeps above this many points are streamed to disk (ChunkStore) instead of held in memory
+STREAM_THRESHOLD = 1_000_000
+
+#: HDF5 chunk of the on-disk arrays: about this many values [-]
+DISK_CHUNK_VALUES = 1 << 18
+
+
+def _hyperslabs(start: int, stop: int, shape: Sequence[int]):
+    """Split the flat C-order range [start, stop) of an array of `shape` into rectangular pieces.
+
+    Yields (index, lo, hi): `index` a tuple of ints and slices into the N-d array, [lo, hi) the
+    flat range it covers (pieces come in order, each a full C-ordered block).  At most
+    2 (ndim - 1) + 1 pieces.
+    """
+    if start >= stop:
+        return
+    if len(shape) == 1:
+        yield (slice(start, stop),), start, stop
+        return
+    inner = int(np.prod(shape[1:]))
+    i0, r0 = divmod(start, inner)
+    i1, r1 = divmod(stop, inner)
+    if i0 == i1:
+        for idx, lo, hi in _hyperslabs(r0, r1, shape[1:]):
+            yield (i0, *idx), i0 * inner + lo, i0 * inner + hi
+        return
+    if r0:
+        for idx, lo, hi in _hyperslabs(r0, inner, shape[1:]):
+            yield (i0, *idx), i0 * inner + lo, i0 * inner + hi
+        i0 += 1
+    if i1 > i0:
+        yield (slice(i0, i1), *[slice(None)] * (len(shape) - 1)), i0 * inner, i1 * inner
+    if r1:
+        for idx, lo, hi in _hyperslabs(0, r1, shape[1:]):
+            yield (i1, *idx), i1 * inner + lo, i1 * inner + hi
+
+
+class ChunkStore:
+    """A sweep written chunk by chunk to a chunked, zlib-compressed NetCDF4 file (h5netcdf).
+
+    path: the file to create (replaced if it exists)
+    axes: the sweep axes (objects with ``key`` and ``values``, e.g. `SweepAxis`) in the C order
+        of the flat grid the chunks come in (slow keys first, then fast keys)
+    names_units: {block: {key: units}} of the variables to expect, or None; a units value of
+        None takes the unit from the name (`unit_of`).  A block or key met in `write` that is
+        not listed is added then; a variable never written stays at its fill value (NaN, 0
+        or an empty string)
+    order: the dotted keys in the scenario's axis order; `close` returns the Dataset
+        transposed to it (default: the order of `axes`)
+
+    ``write(offset, blocks)`` stores a chunk: `blocks` = {block: {key: 1-D array}} as
+    `optogen.pipeline.evaluate` returns them, the values of the flat grid points
+    [offset, offset + n).  The range is written as hyperslabs of the N-d arrays, so only the
+    chunk is ever in memory.  ``close(attrs)`` writes the global attributes, closes the file
+    and returns it opened lazily with xarray (data read on access).
+    """
+
+    def __init__(self, path, axes, names_units: Mapping[str, Mapping[str, str | None]] | None = None,
+                 order: Sequence[str] | None = None):
+        import h5netcdf
+        self.path = Path(path)
+        self.axes = list(axes)
+        self.dims = [dim_name(a.key) for a in self.axes]
+        self.shape = tuple(int(np.asarray(a.values).size) for a in self.axes)
+        self.size = int(np.prod(self.shape))
+        self.order = [dim_name(k) for k in order] if order is not None else list(self.dims)
+        self.units = {(b, k): u for b, vals in (names_units or {}).items() for k, u in vals.items()}
+        self._names: dict[tuple[str, str], str] = {}
+        self._file = h5netcdf.File(self.path, "w")
+        self._file.dimensions = dict(zip(self.dims, self.shape))
+        for a, d in zip(self.axes, self.dims):
+            values = np.asarray(a.values)
+            v = self._file.create_variable(d, (d,), values.dtype if values.dtype.kind != "b" else np.int8)
+            v[...] = values.astype(np.int8) if values.dtype.kind == "b" else values
+            for k, val in coord_attrs(a.key, values).items():
+                v.attrs[k] = val
+        self._chunks = self._chunk_shape()
+
+    def _chunk_shape(self) -> tuple[int, ...]:
+        """HDF5 chunks: whole fast dimensions (last first) up to about DISK_CHUNK_VALUES values."""
+        chunks, room = [], DISK_CHUNK_VALUES
+        for n in reversed(self.shape):
+            c = max(1, min(n, room))
+            chunks.append(c)
+            room = max(1, room // c)
+        return tuple(reversed(chunks))
+
+    def _variable(self, block: str, key: str, sample: np.ndarray):
+        name = var_name(block, key)
+        if (block, key) in self._names:
+            return self._file.variables[name]
+        self._names[(block, key)] = name
+        kind = sample.dtype.kind
+        if name == "converged" or kind == "b":
+            dtype, fill = np.int8, None         # no _FillValue: xarray would mask the 0 (false) flags
+        elif kind in "OUS":
+            import h5py
+            dtype, fill = h5py.string_dtype(), None
+        else:
+            dtype, fill = sample.dtype if kind == "f" else np.float64, np.nan
+        opts = dict(chunks=self._chunks, compression="gzip", compression_opts=4, shuffle=True) \
+            if kind not in "OUS" else dict(chunks=self._chunks)
+        v = self._file.create_variable(name, tuple(self.dims), dtype, fillvalue=fill, **opts)
+        attrs = var_attrs(name, sample.astype(bool) if dtype is np.int8 else sample, block, key)
+        units = self.units.get((block, key))
+        if units is not None and "units" in attrs:
+            attrs["units"] = units
+        if dtype is np.int8:             # a flag: CF 3.5, and xarray's own marker to read it back as bool
+            attrs.update(flag_values=np.array([0, 1], dtype=np.int8), flag_meanings="false true", dtype="bool")
+        for k, val in attrs.items():
+            v.attrs[k] = val
+        return v
+
+    def write(self, offset: int, blocks: Mapping[str, Mapping[str, np.ndarray]]) -> None:
+        """Store the chunk of flat grid points [offset, offset + n) (n = length of the arrays)."""
+        for block, vals in blocks.items():
+            if block.startswith("_"):
+                continue
+            for key, arr in vals.items():
+                arr = np.asarray(arr).reshape(-1)
+                if offset < 0 or offset + arr.size > self.size:
+                    raise ValueError(f"chunk [{offset}, {offset + arr.size}) outside the grid of {self.size} points")
+                v = self._variable(block, key, arr)
+                if v.dtype == np.int8:
+                    arr = arr.astype(np.int8)
+                elif arr.dtype.kind in "OU":
+                    arr = arr.astype(str).astype(object)
+                for index, lo, hi in _hyperslabs(offset, offset + arr.size, self.shape):
+                    piece = tuple(s.stop - s.start if isinstance(s, slice) and s.stop is not None else
+                                  (n if isinstance(s, slice) else None)
+                                  for s, n in zip(index, self.shape))
+                    v[index] = arr[lo - offset: hi - offset].reshape([p for p in piece if p is not None])
+
+    def abandon(self) -> None:
+        """Close and delete the file (a run that failed part-way leaves nothing behind)."""
+        try:
+            self._file.close()
+        finally:
+            self.path.unlink(missing_ok=True)
+
+    def close(self, attrs: Mapping[str, Any] | None = None) -> xr.Dataset:
+        """Write the global attributes, close the file and open it lazily (scenario axis order)."""
+        for k, val in (attrs or {}).items():
+            self._file.attrs[k] = val
+        self._file.attrs["optogen_storage"] = "chunked NetCDF4 written chunk by chunk (optogen ChunkStore)"
+        self._file.close()
+        ds = xr.open_dataset(self.path, engine="h5netcdf")
+        return ds.transpose(*self.order)

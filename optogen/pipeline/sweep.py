@@ -9,9 +9,13 @@ used (a progress bar, `--workers` / `--scheduler`).
 """
 from __future__ import annotations
 
+import atexit
 import itertools
 import math
+import os
 import sys
+import tempfile
+from pathlib import Path
 
 import numpy as np
 import xarray as xr
@@ -20,7 +24,7 @@ from .. import schema
 from ..errors import InputError
 from ..scenario import Scenario
 from .point import background_limit, evaluate, point_details
-from .result import Result, add_attrs, labelled_dataset
+from .result import STREAM_THRESHOLD, ChunkStore, Result, add_attrs, labelled_dataset
 from .setup import FAST_KEYS, Setup, build, swept_light_scaling, tabulate_generation
 
 
@@ -39,13 +43,17 @@ MAX_WORKERS = 1024
 
 
 def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None = None,
-        scheduler: str | None = None, chunk_size: int | None = None) -> Result:
+        scheduler: str | None = None, chunk_size: int | None = None, store=None) -> Result:
     """Run a scenario: a single point, or every point of its sweep grid.
 
     progress: show a tqdm bar (None: only on a terminal, after about 1 s) [-]
     workers: run the chunks on a local dask cluster with this many workers [-]
     scheduler: address of an existing dask.distributed scheduler [-]
     chunk_size: points per chunk (default from [solver] chunk_size or 100000) [-]
+    store: a NetCDF4 file to stream the sweep into chunk by chunk (`result.ChunkStore`), so
+        that memory is bounded by a chunk; a sweep of more than `result.STREAM_THRESHOLD`
+        points is always streamed (to a temporary file, removed when Python exits, unless
+        `store` is given).  The Result's Dataset then reads the file lazily.
     """
     sc = scenario
     if not sc.sweep:
@@ -80,8 +88,12 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     client = _dask_client(workers, scheduler) if (workers or scheduler) else None
     total = len(slow_combos) * n_fast
     merged: dict[str, dict[str, np.ndarray]] = {}     # filled in place: no second copy of the grid
+    chunk_store = _open_store(store, total, slow + fast, axes)
 
-    def store(offset, part):
+    def keep(offset, part):
+        if chunk_store is not None:
+            chunk_store.write(offset, part)
+            return
         for block, vals in part.items():
             for k, v in vals.items():
                 dest = merged.setdefault(block, {})
@@ -103,8 +115,12 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
                     ok = (temps[0] >= schema.T_MIN_K) & (temps[0] <= schema.T_MAX_K)
                 tabulate_generation(setup, np.asarray(temps[0], dtype=float)[ok])
             for start, part in _group_chunks(setup, fast, n_fast, chunk, client):
-                store(g * n_fast + start, part)
+                keep(g * n_fast + start, part)
                 bar.update(1)
+    except BaseException:
+        if chunk_store is not None:
+            chunk_store.abandon()
+        raise
     finally:
         bar.close()
         if client is not None:
@@ -112,22 +128,45 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
             client.close()
             if cluster is not None:
                 cluster.close()
-    if "steady_state" in merged and "converged" in merged["steady_state"]:
-        bad = int(np.sum(merged["steady_state"]["converged"] == 0))
-        if bad:
-            warnings.append(f"{bad} operating point(s) did not converge or are outside the model "
-                            "(the reasons are in the warnings); see the 'converged' variable")
-    # reorder from (slow..., fast...) to the scenario's axis order
-    order = slow + fast
-    perm = [order.index(a) for a in axes]
-    shape = [a.values.size for a in order]
-    merged = {b: {k: np.transpose(v.reshape(shape), perm).reshape(-1) for k, v in vals.items()}
-              for b, vals in merged.items()}
-    ds = labelled_dataset(merged, [a.values.size for a in axes], axes)
+    if chunk_store is not None:
+        ds = chunk_store.close()
+        bad = int((~ds["converged"].astype(bool)).sum()) if "converged" in ds else 0
+    else:
+        bad = int(np.sum(merged["steady_state"]["converged"] == 0)) if "converged" in merged.get(
+            "steady_state", {}) else 0
+        # reorder from (slow..., fast...) to the scenario's axis order
+        order = slow + fast
+        perm = [order.index(a) for a in axes]
+        shape = [a.values.size for a in order]
+        merged = {b: {k: np.transpose(v.reshape(shape), perm).reshape(-1) for k, v in vals.items()}
+                  for b, vals in merged.items()}
+        ds = labelled_dataset(merged, [a.values.size for a in axes], axes)
+    if bad:
+        warnings.append(f"{bad} operating point(s) did not converge or are outside the model "
+                        "(the reasons are in the warnings); see the 'converged' variable")
     add_attrs(ds, sc)
     if not slow:
         add_background_limit(ds, setup)
     return Result(sc, ds, {}, tuple(warnings))
+
+
+def _open_store(path, total: int, grid_axes, axes):
+    """A `ChunkStore` for a streamed sweep (a path given, or more than STREAM_THRESHOLD points), else None."""
+    if path is None and total <= STREAM_THRESHOLD:
+        return None
+    if path is None:
+        fd, name = tempfile.mkstemp(prefix="optogen-sweep-", suffix=".nc")
+        os.close(fd)
+        path = Path(name)
+        atexit.register(_remove, path)
+    return ChunkStore(path, grid_axes, None, order=[a.key for a in axes])
+
+
+def _remove(path: Path) -> None:
+    try:
+        path.unlink()
+    except OSError:
+        pass
 
 
 def add_background_limit(ds: xr.Dataset, setup: Setup) -> None:

@@ -1,17 +1,9 @@
-"""Recombination: Shockley-Read-Hall, radiative, Auger and surfaces.
+"""The recombination of an absorber: `Recombination` (parameters, from a scenario table) and
+`PreparedRates` (flat per-point constants; `rates(dn)` is the solver's hot path).
 
-Every rate is a vectorised numpy function of the dark densities n0, p0 and the
-excess density Delta n (Delta p = Delta n: uniform, no trapping), returning a
-net rate U [cm^-3 s^-1] that is zero in the dark; its lifetime is Delta n / U.
-
-The equilibrium product.  Every rate vanishes at n p = n_i,eff^2.  Here
-n_i,eff^2 is taken as the dark product n0 p0 (equal to n_i,eff^2 of the
-equilibrium statistics when non-degenerate; taking n0 p0 keeps the dark rate
-exactly zero also where the dark statistics are degenerate).  With an
-injection-dependent band-gap narrowing model (Schenk 1998) the product grows
-with the carriers (n_i,eff = n_i exp(dEg / 2kT)):
-n_i,eff^2(n, p) = n0 p0 exp((dEg(n, p) - dEg(n0, p0)) / kT),
-written ``ni2_shift`` = (dEg(n, p) - dEg(n0, p0)) / kT [-] below.
+Every rate is a vectorised numpy function of the dark densities n0, p0 and the excess
+density Delta n (Delta p = Delta n: uniform, no trapping), returning a net rate U
+[cm^-3 s^-1] that is zero in the dark; its lifetime is Delta n / U.
 
 Scenario table ``[recombination]`` (see `Recombination.from_table`)::
 
@@ -27,523 +19,24 @@ Scenario table ``[recombination]`` (see `Recombination.from_table`)::
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass
 from typing import Mapping
 
 import numpy as np
 
-from . import _dispatch
-from .constants import kT_eV, q_C
-from .equilibrium import bgn_eV, ni_nc_nv_eg
-from . import schema as _schema
-from .errors import InputError, check_range, did_you_mean
+from .. import registry
+from .. import schema as _schema
+from ..constants import kT_eV
+from ..equilibrium import bgn_eV
+from ..errors import InputError, check_range
+from .intrinsic import auger_from_coefficients
+from .product import excess_product_cm6
+from .srh import Defect, _srh_rates, defect_from_table, trap_densities_cm3
+from .surface import j0_at_temperature_fA_cm2, surface_j0
+
+__all__ = ["MECHANISMS", "Recombination", "PreparedRates"]
 
 MECHANISMS = ("srh", "radiative", "auger", "surface")
-
-# ---------------------------------------------------------------------------
-# The common factor n p - n_i,eff^2
-# ---------------------------------------------------------------------------
-
-
-def excess_product_cm6(n0_cm3, p0_cm3, delta_n_cm3, ni2_shift=0.0):
-    """n p - n_i,eff^2 [cm^-6], written without cancellation.
-
-    n p - n_i,eff^2 = dn (n0 + p0 + dn) - n0 p0 expm1(ni2_shift)
-
-    n0_cm3, p0_cm3: dark densities [cm^-3]; delta_n_cm3: excess density [cm^-3];
-    ni2_shift: ln(n_i,eff^2(n, p) / (n0 p0)) from injection-dependent band-gap
-    narrowing, 0 otherwise [-].
-    """
-    n0, p0, dn = (np.asarray(a, dtype=float) for a in (n0_cm3, p0_cm3, delta_n_cm3))
-    out = dn * (n0 + p0 + dn)
-    if np.any(ni2_shift):
-        # n0 p0 = 0 (below the float range) contributes nothing, even for a huge shift; a shift
-        # beyond the float range gives -inf (a product the model cannot support), never NaN
-        with np.errstate(over="ignore", invalid="ignore"):
-            n0p0 = n0 * p0
-            out = out - np.where(n0p0 > 0, n0p0 * np.expm1(ni2_shift), 0.0)
-    return out
-
-
-# ---------------------------------------------------------------------------
-# Shockley-Read-Hall
-# ---------------------------------------------------------------------------
-
-
-def srh_shockley_read_hall1952(n0_cm3, p0_cm3, delta_n_cm3, tau_n0_s, tau_p0_s, n1_cm3, p1_cm3,
-                               ni2_shift=0.0):
-    """Net SRH rate through one level [cm^-3 s^-1].
-
-    U = (n p - n_i,eff^2) / (tau_p0 (n + n1) + tau_n0 (p + p1))
-
-    W. Shockley and W. T. Read, Phys. Rev. 87, 835 (1952), doi:10.1103/PhysRev.87.835;
-    R. N. Hall, Phys. Rev. 87, 387 (1952), doi:10.1103/PhysRev.87.387.
-
-    n0_cm3, p0_cm3: dark densities [cm^-3]; delta_n_cm3: excess density [cm^-3];
-    tau_n0_s, tau_p0_s: capture time constants 1/(sigma v_th N_t) [s] (inf: no capture);
-    n1_cm3, p1_cm3: densities with the Fermi level at the trap, n1 p1 = n_i,eff^2 [cm^-3];
-    ni2_shift: see `excess_product_cm6` [-] (n1 and p1 each scale by exp(ni2_shift/2)).
-    Several levels: give arrays with a trailing level axis and sum over it.
-    """
-    n0, p0, dn = (np.asarray(a, dtype=float) for a in (n0_cm3, p0_cm3, delta_n_cm3))
-    # written with capture rates a = 1/tau_n0, b = 1/tau_p0 so that a missing capture (tau = inf) is exact
-    with np.errstate(divide="ignore"):
-        a = 1.0 / np.asarray(tau_n0_s, dtype=float)
-        b = 1.0 / np.asarray(tau_p0_s, dtype=float)
-    return _srh_rates(n0, p0, dn, a, b, np.asarray(n1_cm3, float), np.asarray(p1_cm3, float), ni2_shift)
-
-
-def _srh_rates(n0, p0, dn, a, b, n1, p1, ni2_shift=0.0):
-    """SRH with capture rates a = 1/tau_n0, b = 1/tau_p0 [s^-1]; shapes (..., K) for K levels."""
-    exc = excess_product_cm6(n0, p0, dn, ni2_shift)[..., None]
-    with np.errstate(over="ignore", invalid="ignore"):     # a shift beyond the float range: NaN, not a warning
-        if np.any(ni2_shift):
-            s = np.exp(0.5 * np.asarray(ni2_shift))[..., None]
-            n1, p1 = n1 * s, p1 * s
-        n, p = (n0 + dn)[..., None], (p0 + dn)[..., None]
-        den = a * (n + n1) + b * (p + p1)
-        num = exc * a * b
-        out = np.divide(num, den, out=np.zeros(np.broadcast_shapes(num.shape, den.shape)), where=den > 0)
-    return out.sum(axis=-1)
-
-
-def trap_densities_cm3(level_from_ev_eV, effective_gap_eV, nc_cm3, nv_cm3, T_K):
-    """SRH densities n1, p1 [cm^-3] for a level at Et - Ev = level_from_ev_eV [eV].
-
-    n1 = Nc exp(-(Ec - Et)/kT), p1 = Nv exp(-(Et - Ev)/kT), Ec - Ev = effective gap,
-    so that n1 p1 = Nc Nv exp(-Eg_eff/kT) = n_i,eff^2.
-    effective_gap_eV [eV]; nc_cm3, nv_cm3 [cm^-3]; T_K [K].
-    """
-    kT = kT_eV(T_K)
-    et = np.asarray(level_from_ev_eV, dtype=float)
-    return nc_cm3 * np.exp((et - effective_gap_eV) / kT), nv_cm3 * np.exp(-et / kT)
-
-
-_ISTRATOV = ("A. A. Istratov, H. Hieslmair and E. R. Weber, Appl. Phys. A 69, 13 (1999), "
-             "doi:10.1007/s003390050968; D. Macdonald and L. J. Geerligs, Appl. Phys. Lett. 85, 4061 "
-             "(2004), doi:10.1063/1.1812833 (from memory)")
-
-
-@dataclass(frozen=True)
-class Defect:
-    """One SRH level.
-
-    Either energy_eV + sigma_n_cm2 + sigma_p_cm2 + density_cm3 (tau_x0 = 1/(sigma_x v_th,x(T) N_t)),
-    or tau_n0_s + tau_p0_s (+ energy_eV; mid-gap, at the intrinsic level, if absent).
-
-    name: label or built-in name [-]
-    energy_eV: level position measured from `energy_ref` [eV]
-    energy_ref: "Ev" (upward from the valence band edge), "Ec" (downward from the
-        conduction band edge) or "Ei" (signed, upward from the intrinsic level) [-]
-    sigma_n_cm2, sigma_p_cm2: capture cross-sections [cm^2]
-    density_cm3: defect density N_t [cm^-3]
-    tau_n0_s, tau_p0_s: capture time constants [s]
-    source: citation of the level parameters
-    label: dotted scenario path used in error messages [-]
-    """
-
-    name: str = "custom"
-    energy_eV: float | None = None
-    energy_ref: str = "Ev"
-    sigma_n_cm2: float | None = None
-    sigma_p_cm2: float | None = None
-    density_cm3: float | None = None
-    tau_n0_s: float | None = None
-    tau_p0_s: float | None = None
-    source: str = ""
-    label: str = field(default="", compare=False)
-
-    def __post_init__(self):
-        where = self.label or f"defect {self.name}"
-        ref = {"ev": "Ev", "ec": "Ec", "ei": "Ei"}.get(str(self.energy_ref).lower())
-        if ref is None:
-            raise InputError(f"{where}.energy_ref", self.energy_ref, 'one of "Ev", "Ec", "Ei"')
-        object.__setattr__(self, "energy_ref", ref)
-        by_tau = self.tau_n0_s is not None or self.tau_p0_s is not None
-        by_sigma = self.sigma_n_cm2 is not None or self.sigma_p_cm2 is not None
-        if by_tau and by_sigma:
-            raise InputError(f"{where}", "tau_*_s and sigma_*_cm2", "either tau_n0_s + tau_p0_s or "
-                             "sigma_n_cm2 + sigma_p_cm2 + density_cm3, not both")
-        if by_tau:
-            for k in ("tau_n0_s", "tau_p0_s"):
-                v = getattr(self, k)
-                if v is None:
-                    raise InputError(f"{where}.{k}", None, "a lifetime > 0 s (both tau_n0_s and tau_p0_s are needed)")
-                check_range(f"{where}.{k}", v, 0.0, np.inf, low_open=True, unit="s")
-        elif by_sigma:
-            for k in ("sigma_n_cm2", "sigma_p_cm2"):
-                v = getattr(self, k)
-                if v is None:
-                    raise InputError(f"{where}.{k}", None, "a cross-section >= 0 cm^2 (both are needed)")
-                check_range(f"{where}.{k}", v, 0.0, None, unit="cm^2")
-            if self.energy_eV is None:
-                raise InputError(f"{where}.energy_eV", None, "a level energy [eV] with the cross-sections")
-        if self.density_cm3 is not None:
-            check_range(f"{where}.density_cm3", self.density_cm3, 0.0, None, unit="cm^-3")
-        if self.energy_eV is not None:
-            check_range(f"{where}.energy_eV", self.energy_eV, None if ref == "Ei" else 0.0, None, unit="eV")
-
-    @property
-    def complete(self) -> bool:
-        """True when the defect has enough parameters to give a rate."""
-        return self.tau_n0_s is not None or self.density_cm3 is not None
-
-    def tau_s(self, material, T_K):
-        """Capture time constants (tau_n0, tau_p0) [s] at T_K [K] (inf where no capture)."""
-        if self.tau_n0_s is not None:
-            T = np.asarray(T_K, dtype=float)
-            return np.full_like(T, self.tau_n0_s), np.full_like(T, self.tau_p0_s)
-        if self.density_cm3 is None:
-            raise InputError(f"{self.label or 'defect ' + self.name}.density_cm3", None,
-                             "a defect density [cm^-3] for a level given by cross-sections")
-        ve, vh = material.vth_cm_s(T_K)
-        with np.errstate(divide="ignore"):
-            return (1.0 / (self.sigma_n_cm2 * ve * np.asarray(self.density_cm3, float)),
-                    1.0 / (self.sigma_p_cm2 * vh * np.asarray(self.density_cm3, float)))
-
-    def level_from_ev_eV(self, effective_gap_eV, intrinsic_level_eV):
-        """Et - Ev [eV] given the gap and the intrinsic level (from Ev) [eV]; mid-gap (Eg/2) if no energy.
-
-        Mid-gap, not E_i: in narrow-gap materials with unequal masses E_i can leave the gap.
-        """
-        if self.energy_eV is None:
-            return 0.5 * np.asarray(effective_gap_eV, dtype=float) + 0.0 * np.asarray(intrinsic_level_eV)
-        if self.energy_ref == "Ev":
-            return np.asarray(self.energy_eV, dtype=float) + 0.0 * np.asarray(effective_gap_eV)
-        if self.energy_ref == "Ec":
-            return np.asarray(effective_gap_eV, dtype=float) - self.energy_eV
-        return np.asarray(intrinsic_level_eV, dtype=float) + self.energy_eV
-
-
-#: Built-in Si defects (density set per use: ``Defect`` fields via `defect_from_table`).
-DEFECTS: dict[str, Defect] = {
-    "Fe_i": Defect("Fe_i", 0.38, "Ev", 5e-14, 7e-17, source=_ISTRATOV),
-    "FeB": Defect("FeB", 0.26, "Ec", 5e-15, 3e-15, source=_ISTRATOV),
-}
-
-_DEFECT_KEYS = _schema.section_keys("recombination.defects.*")    # declared once in optogen.schema
-
-
-def defect_from_table(table: Mapping, label: str = "recombination.defects.0") -> Defect:
-    """A `Defect` from one ``[[recombination.defects]]`` table.
-
-    Keys: name (a built-in of `DEFECTS`, or a free label), density_cm3, energy_eV,
-    energy_ref, sigma_n_cm2, sigma_p_cm2, tau_n0_s, tau_p0_s.  Keys given override the
-    built-in values.  label: dotted path for error messages [-].
-    """
-    if not isinstance(table, Mapping):
-        raise InputError(label, table, "a table of defect keys")
-    for k in table:
-        if k not in _DEFECT_KEYS:
-            raise InputError(f"{label}.{k}", table[k], "one of " + ", ".join(_DEFECT_KEYS),
-                             did_you_mean(k, _DEFECT_KEYS))
-    name = str(table.get("name", "custom"))
-    lib = {_dispatch.normalise(k): v for k, v in DEFECTS.items()}
-    base = lib.get(_dispatch.normalise(name))
-    given = {k: table[k] for k in _DEFECT_KEYS if k in table and k != "name"}
-    if base is None:
-        if not ({"tau_n0_s", "tau_p0_s"} & set(given) or {"sigma_n_cm2", "sigma_p_cm2"} & set(given)):
-            raise InputError(f"{label}.name", name, "a built-in defect (" + ", ".join(DEFECTS) +
-                             ") or a level given by energy_eV + sigma_n_cm2 + sigma_p_cm2 + density_cm3 "
-                             "or by tau_n0_s + tau_p0_s", did_you_mean(name, list(DEFECTS)))
-        d = Defect(name=name, label=label, **given)
-    else:
-        if {"tau_n0_s", "tau_p0_s"} & set(given):   # lifetimes replace the library cross-sections
-            base = replace(base, sigma_n_cm2=None, sigma_p_cm2=None)
-        d = replace(base, label=label, **given)
-    if not d.complete:
-        raise InputError(f"{label}.density_cm3", None, "a defect density >= 0 cm^-3 for " + name)
-    return d
-
-
-# ---------------------------------------------------------------------------
-# Radiative
-# ---------------------------------------------------------------------------
-
-# (T [K], B [cm^3/s]) for intrinsic Si, T. Trupke et al., J. Appl. Phys. 94, 4930 (2003),
-# doi:10.1063/1.1610231, Table I as recalled (from memory; the 300 K value 4.73e-15 is the
-# paper's headline figure, the others are less certain, about +-20 %).
-_TRUPKE2003_TABLE = np.array([
-    (77.0, 8.01e-14), (90.0, 4.57e-14), (112.0, 2.14e-14), (170.0, 8.84e-15),
-    (195.0, 7.35e-15), (249.0, 5.48e-15), (300.0, 4.73e-15),
-])
-
-
-def radiative_b_trupke2003(T_K):
-    """Radiative coefficient B(T) of lightly doped crystalline Si [cm^3/s].
-
-    Log-log interpolation in the table of T. Trupke, M. A. Green, P. Wuerfel,
-    P. P. Altermatt, A. Wang, J. Zhao and R. Corkish, J. Appl. Phys. 94, 4930 (2003),
-    doi:10.1063/1.1610231 (B(300 K) = 4.73e-15 cm^3/s; other entries from memory).
-    Above 300 K the last segment's power law (B ~ T^-0.79) is continued; below 77 K
-    B is held at its 77 K value.  T_K: temperature [K].
-    """
-    lt, lb = np.log(_TRUPKE2003_TABLE[:, 0]), np.log(_TRUPKE2003_TABLE[:, 1])
-    x = np.log(np.clip(np.asarray(T_K, dtype=float), _TRUPKE2003_TABLE[0, 0], None))
-    slope = (lb[-1] - lb[-2]) / (lt[-1] - lt[-2])
-    y = np.where(x > lt[-1], lb[-1] + slope * (x - lt[-1]), np.interp(x, lt, lb))
-    return np.exp(y)
-
-
-def radiative_band_to_band(n0_cm3, p0_cm3, delta_n_cm3, B_cm3_s, B_rel=1.0, photon_recycling=0.0,
-                           ni2_shift=0.0):
-    """Net band-to-band radiative rate [cm^-3 s^-1].
-
-    U = B_rel B (1 - f_PR) (n p - n_i,eff^2)
-
-    W. van Roosbroeck and W. Shockley, Phys. Rev. 94, 1558 (1954) for the form.
-    n0_cm3, p0_cm3, delta_n_cm3 [cm^-3]; B_cm3_s: radiative coefficient [cm^3/s];
-    B_rel: relative coefficient (screening at high densities; 1 = none) [-];
-    photon_recycling: fraction f_PR of emitted photons re-absorbed in the absorber [-];
-    ni2_shift: see `excess_product_cm6` [-].
-    """
-    return (np.asarray(B_rel) * np.asarray(B_cm3_s) * (1.0 - np.asarray(photon_recycling))
-            * excess_product_cm6(n0_cm3, p0_cm3, delta_n_cm3, ni2_shift))
-
-
-# ---------------------------------------------------------------------------
-# Auger / intrinsic.  Every model is U_auger = (n p - n_i,eff^2) (A + C dn^e) with
-# A, C, e from the published formula; `_coeffs_*` return (A, C, e, B_radiative).
-# ---------------------------------------------------------------------------
-
-
-def _coeffs_richter2012(material, n0, p0, T):
-    g_eeh = 1.0 + 13.0 * (1.0 - np.tanh((n0 / 3.3e17) ** 0.66))
-    g_ehh = 1.0 + 7.5 * (1.0 - np.tanh((p0 / 7.0e17) ** 0.63))
-    return 2.5e-31 * g_eeh * n0 + 8.5e-32 * g_ehh * p0, 3.0e-29, 0.92, radiative_b_trupke2003(T)
-
-
-def _coeffs_kerr_cuevas2002(material, n0, p0, T):
-    return 1.8e-24 * n0**0.65 + 6.0e-25 * p0**0.65, 3.0e-27, 0.8, 9.5e-15 + 0.0 * np.asarray(T)
-
-
-def _coeffs_dziewior_schmid1977(material, n0, p0, T):
-    cn, cp = 2.8e-31, 9.9e-32
-    return cn * n0 + cp * p0, cn + cp, 1.0, radiative_b_trupke2003(T)
-
-
-def _coeffs_constant(material, n0, p0, T):
-    cn, cp = material.auger_coefficients_cm6_s(T)     # temperature-dependent where published
-    return cn * n0 + cp * p0, cn + cp, 1.0, material.radiative_coefficient_cm3_s(T)
-
-
-def _auger(coeffs, n0, p0, dn, ni2_shift):
-    A, C, e = coeffs[:3]
-    dn = np.asarray(dn, dtype=float)
-    return excess_product_cm6(n0, p0, dn, ni2_shift) * (A + C * dn**e)
-
-
-def intrinsic_richter2012(n0_cm3, p0_cm3, delta_n_cm3, T_K=300.0, B_rel=1.0, ni2_shift=0.0):
-    """Intrinsic (Auger + radiative) recombination of crystalline Si, split in its two parts.
-
-    U = (n p - n_i,eff^2) (2.5e-31 g_eeh n0 + 8.5e-32 g_ehh p0 + 3.0e-29 dn^0.92 + B_rel B_low)
-    g_eeh = 1 + 13 (1 - tanh((n0/3.3e17)^0.66)),  g_ehh = 1 + 7.5 (1 - tanh((p0/7.0e17)^0.63))
-
-    A. Richter, S. W. Glunz, F. Werner, J. Schmidt and A. Cuevas, Phys. Rev. B 86, 165202
-    (2012), doi:10.1103/PhysRevB.86.165202 (constants from memory).  B_low = 4.73e-15 cm^3/s
-    at 300 K (Trupke 2003); here B_low(T) = `radiative_b_trupke2003`.  The fit is for 300 K.
-
-    n0_cm3, p0_cm3: dark densities [cm^-3]; delta_n_cm3 [cm^-3]; T_K [K]; B_rel [-];
-    ni2_shift: see `excess_product_cm6` [-].
-    Returns (U_auger, U_radiative) [cm^-3 s^-1]; their sum is the published U.
-    """
-    c = _coeffs_richter2012(None, np.asarray(n0_cm3, float), np.asarray(p0_cm3, float), T_K)
-    return (_auger(c, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift),
-            radiative_band_to_band(n0_cm3, p0_cm3, delta_n_cm3, c[3], B_rel, 0.0, ni2_shift))
-
-
-def intrinsic_kerr_cuevas2002(n0_cm3, p0_cm3, delta_n_cm3, ni2_shift=0.0):
-    """Intrinsic (Auger + radiative) recombination of crystalline Si, split in its two parts.
-
-    U = (n p - n_i,eff^2) (1.8e-24 n0^0.65 + 6e-25 p0^0.65 + 3e-27 dn^0.8 + 9.5e-15)
-
-    M. J. Kerr and A. Cuevas, J. Appl. Phys. 91, 2473 (2002), doi:10.1063/1.1432476
-    (constants from memory).  The paper writes n p; n p - n_i,eff^2 is used so that the
-    dark rate is zero (the difference is negligible under light).
-
-    n0_cm3, p0_cm3, delta_n_cm3 [cm^-3]; ni2_shift [-].
-    Returns (U_auger, U_radiative) [cm^-3 s^-1].
-    """
-    c = _coeffs_kerr_cuevas2002(None, np.asarray(n0_cm3, float), np.asarray(p0_cm3, float), 300.0)
-    return (_auger(c, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift),
-            radiative_band_to_band(n0_cm3, p0_cm3, delta_n_cm3, c[3], 1.0, 0.0, ni2_shift))
-
-
-def auger_dziewior_schmid1977(n0_cm3, p0_cm3, delta_n_cm3, ni2_shift=0.0):
-    """Band-to-band Auger rate of Si with constant coefficients [cm^-3 s^-1].
-
-    U = (Cn n + Cp p)(n p - n_i,eff^2), Cn = 2.8e-31, Cp = 9.9e-32 cm^6/s
-
-    J. Dziewior and W. Schmid, Appl. Phys. Lett. 31, 346 (1977), doi:10.1063/1.89694.
-    n0_cm3, p0_cm3, delta_n_cm3 [cm^-3]; ni2_shift [-].
-    """
-    c = _coeffs_dziewior_schmid1977(None, np.asarray(n0_cm3, float), np.asarray(p0_cm3, float), 300.0)
-    return _auger(c, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift)
-
-
-def auger_constant(n0_cm3, p0_cm3, delta_n_cm3, Cn_cm6_s, Cp_cm6_s, ni2_shift=0.0):
-    """Band-to-band Auger rate with constant coefficients [cm^-3 s^-1].
-
-    U = (Cn n + Cp p)(n p - n_i,eff^2)  (e.g. Sze & Ng, Physics of Semiconductor Devices, 3rd ed., 2007)
-    n0_cm3, p0_cm3, delta_n_cm3 [cm^-3]; Cn_cm6_s, Cp_cm6_s [cm^6/s]; ni2_shift [-].
-    """
-    n0, p0 = np.asarray(n0_cm3, float), np.asarray(p0_cm3, float)
-    c = (Cn_cm6_s * n0 + Cp_cm6_s * p0, Cn_cm6_s + Cp_cm6_s, 1.0)
-    return _auger(c, n0, p0, delta_n_cm3, ni2_shift)
-
-
-INTRINSIC_MODELS = {
-    "richter2012": _coeffs_richter2012,
-    "kerr_cuevas2002": _coeffs_kerr_cuevas2002,
-    "dziewior_schmid1977": _coeffs_dziewior_schmid1977,
-    "constant": _coeffs_constant,
-}
-_INTRINSIC_ALIASES = {
-    "richter": "richter2012", "intrinsic_richter2012": "richter2012",
-    "kerr-cuevas": "kerr_cuevas2002", "kerr_cuevas": "kerr_cuevas2002", "kerr2002": "kerr_cuevas2002",
-    "intrinsic_kerr_cuevas2002": "kerr_cuevas2002",
-    "dziewior-schmid": "dziewior_schmid1977", "dziewior": "dziewior_schmid1977",
-    "auger_dziewior_schmid1977": "dziewior_schmid1977",
-    "auger_constant": "constant", "material": "constant",
-}
-_SILICON_ONLY = {"richter2012", "kerr_cuevas2002", "dziewior_schmid1977"}
-
-
-def j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K=298.15):
-    """A surface J0 quoted at J0_reference_K, carried to temperature T_K [fA/cm^2].
-
-    J0(T) = J0(T_ref) n_i^2(T) / n_i^2(T_ref),  n_i^2 = Nc Nv exp(-Eg / kT) of the material
-    without narrowing.  A surface (or emitter) J0 is proportional to n_i^2: the dark
-    recombination flux J0/q (n p / n_i^2 - 1) is then fixed by the surface alone (D. E. Kane
-    and R. M. Swanson, Proc. 18th IEEE PVSC (1985) 578, from memory; common practice).
-    This is the only place the J0 temperature scaling is applied: `surface_j0_flux_cm2_s`,
-    `Recombination.j0_at_fA_cm2` and so the uniform rates, the depth-resolved surface and
-    the detector's rear S_eff all go through it.
-
-    Parameters
-    ----------
-    J0_fA_cm2 : J0 at J0_reference_K [fA/cm^2]
-    material : the absorber (Nc, Nv, Eg of T)
-    T_K : temperature [K]
-    J0_reference_K : temperature at which J0_fA_cm2 is quoted [K]; None: J0 as given at every T
-
-    Returns
-    -------
-    J0 at T_K [fA/cm^2], broadcast over J0_fA_cm2 and T_K.
-    """
-    j0 = np.asarray(J0_fA_cm2, dtype=float)
-    if J0_reference_K is None:
-        return j0
-    if J0_reference_K is not None and (material is None or T_K is None):
-        raise InputError("recombination.J0_reference_K", J0_reference_K,
-                         "material and T_K, to carry J0 from its reference temperature to T",
-                         "pass material= and T_K=, or J0_reference_K=None for a J0 already at T")
-    return j0 * _j0_scale(material, T_K, J0_reference_K)
-
-
-def surface_j0_flux_cm2_s(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, ni2_shift=0.0, *, material=None, T_K=None,
-                          J0_reference_K=298.15, derivative=False):
-    """Recombination flux into a surface described by a J0 [cm^-2 s^-1] (the one J0 surface law).
-
-    Us = (J0(T) / q) (n p - n_i,eff^2) / n_i,eff^2,   n = n0 + dn, p = p0 + dn,
-    n_i,eff^2 = n0 p0 exp(ni2_shift),  J0(T) from `j0_at_temperature_fA_cm2`.
-
-    n p - n_i,eff^2 comes from `excess_product_cm6` (no cancellation).  The depth-resolved
-    surface (the pipeline's depth-resolved run) and the detector's low-injection
-    S_eff = dUs/ddn at dn = 0 = J0 (n0 + p0) / (q n0 p0) (`surface_velocity_j0_cm_s`) call this function; `surface_j0`
-    (called by `PreparedRates.rates`) is the same law divided by W, through the same kernel
-    and the same J0 temperature scaling.
-
-    Parameters
-    ----------
-    n0_cm3, p0_cm3 : dark electron and hole densities [cm^-3]
-    delta_n_cm3 : excess density at the surface [cm^-3]
-    J0_fA_cm2 : saturation current density of the surface, quoted at J0_reference_K [fA/cm^2]
-    ni2_shift : ln(n_i,eff^2(n, p) / (n0 p0)) from injection-dependent narrowing, 0 otherwise [-]
-    material, T_K : the absorber and the temperature [K]; needed unless J0_reference_K is None
-    J0_reference_K : temperature at which J0 is quoted [K] (default 298.15, as
-        `Recombination.J0_reference_K`); None: J0_fA_cm2 is already the value at T
-    derivative : also return dUs/ddn [cm/s] (at fixed ni2_shift)
-
-    Returns
-    -------
-    Us [cm^-2 s^-1] (0 where J0 = 0), or (Us, dUs/ddn [cm/s]) with derivative=True.
-
-    References
-    ----------
-    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (from memory).
-    """
-    j0 = j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K)
-    return _j0_law(j0 * 1e-15 / q_C, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift, derivative)
-
-
-def _j0_law(coef, n0_cm3, p0_cm3, delta_n_cm3, ni2_shift, derivative=False):
-    """coef (n p - n_i,eff^2) / n_i,eff^2 (and its dn-derivative at fixed shift); coef = J0(T)/q
-    [cm^-2 s^-1] for the flux, J0(T)/(q W) [cm^-3 s^-1] for the volume rate.  coef is applied
-    before the division by n0 p0 so a subnormal rate is rounded once."""
-    n0, p0 = np.asarray(n0_cm3, dtype=float), np.asarray(p0_cm3, dtype=float)
-    dn = np.asarray(delta_n_cm3, dtype=float)
-    coef = np.asarray(coef, dtype=float)
-    exc = excess_product_cm6(n0, p0, dn, ni2_shift)
-    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-        ni2 = n0 * p0 * np.exp(ni2_shift)
-        us = np.where(coef > 0, coef * exc / ni2, 0.0)
-        if not derivative:
-            return us
-        dus = np.where(coef > 0, coef * ((n0 + p0 + 2.0 * dn) / n0) / p0 * np.exp(-np.asarray(ni2_shift)), 0.0)
-    return us, dus
-
-
-def surface_j0(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, thickness_cm, ni2_shift=0.0, *, material=None, T_K=None,
-               J0_reference_K=298.15):
-    """Surface recombination through a J0 per surface, as a volume rate in a uniform wafer [cm^-3 s^-1].
-
-    U_s = Us / W with Us from `surface_j0_flux_cm2_s` (same arguments and kernel; J0 carried
-    from J0_reference_K to T_K as n_i^2 by `j0_at_temperature_fA_cm2`).  thickness_cm: W [cm].
-    `PreparedRates.rates` (so `Recombination.rates`) calls this for its J0 surfaces, so the two
-    agree at every temperature.
-
-    References
-    ----------
-    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (from memory).
-    """
-    j0 = j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K)
-    return _j0_law(j0 * 1e-15 / (q_C * np.asarray(thickness_cm, dtype=float)), n0_cm3, p0_cm3, delta_n_cm3,
-                   ni2_shift)
-
-
-def surface_velocity(delta_n_cm3, S_cm_s, thickness_cm):
-    """Surface recombination through a velocity S per surface, as a volume rate [cm^-3 s^-1].
-
-    U_s = S dn / W (uniform limit, S W / D << 1).
-    delta_n_cm3 [cm^-3]; S_cm_s [cm/s]; thickness_cm [cm].
-    """
-    return np.asarray(S_cm_s) * np.asarray(delta_n_cm3, float) / np.asarray(thickness_cm)
-
-
-def surface_velocity_j0_cm_s(n0_cm3, p0_cm3, J0_fA_cm2):
-    """Low-injection recombination velocity of a surface described by a J0 [cm/s].
-
-    S_eff = dUs/ddn at dn = 0 of the one J0 law (`surface_j0_flux_cm2_s`)
-          = J0 (n0 + p0) / (q n0 p0),
-    i.e. J0 N / (q n_i^2) in extrinsic material and finite for an intrinsic one.
-
-    Parameters
-    ----------
-    n0_cm3, p0_cm3 : dark electron and hole densities [cm^-3]
-    J0_fA_cm2 : saturation current density of the surface at the absorber's temperature [fA/cm^2]
-        (carry a quoted value to T with `j0_at_temperature_fA_cm2` first)
-
-    Returns
-    -------
-    S_eff [cm/s], broadcast over the inputs.
-
-    References
-    ----------
-    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (from memory).
-    """
-    return surface_j0_flux_cm2_s(n0_cm3, p0_cm3, 0.0, J0_fA_cm2, J0_reference_K=None, derivative=True)[1]
-
 
 # ---------------------------------------------------------------------------
 # Gathering parameters: Recombination -> PreparedRates (flat per-point constants)
@@ -551,15 +44,16 @@ def surface_velocity_j0_cm_s(n0_cm3, p0_cm3, J0_fA_cm2):
 
 _TABLE_KEYS = _schema.section_keys("recombination")               # declared once in optogen.schema
 
-#: band-gap narrowing models whose narrowing depends on the carrier densities
-INJECTION_BGN_MODELS = ("schenk1998", "schenk")
+#: band-gap narrowing models (names and aliases) whose narrowing depends on the carrier densities
+#: (a view of the registry's ``injection`` flag)
+INJECTION_BGN_MODELS = tuple(a for m in registry.models("bgn", load=False) if m.injection for a in (m.name, *m.aliases))
 
 
 @dataclass(frozen=True, eq=False)
 class Recombination:
     """The recombination mechanisms of an absorber (parameters only; rates come from `rates`).
 
-    intrinsic: Auger + radiative model, one of `INTRINSIC_MODELS` (aliases accepted);
+    intrinsic: Auger + radiative model, a registered "intrinsic" model (aliases accepted);
         None: "richter2012" for Si, "constant" (material Cn, Cp, B) otherwise [-]
     bgn_model: band-gap narrowing model name for the equilibrium and, if injection-dependent
         (Schenk 1998), for n_i,eff(n, p) inside the rates; None: the equilibrium's [-]
@@ -591,7 +85,7 @@ class Recombination:
     def __post_init__(self):
         object.__setattr__(self, "defects", tuple(self.defects))
         if self.intrinsic is not None:
-            _dispatch.pick("recombination.intrinsic", self.intrinsic, INTRINSIC_MODELS, _INTRINSIC_ALIASES)
+            registry.pick("intrinsic", self.intrinsic, "recombination.intrinsic")
         for side in ("front", "rear"):
             j0, s = getattr(self, f"{side}_J0_fA_cm2"), getattr(self, f"{side}_S_cm_s")
             if j0 is not None and s is not None:
@@ -616,9 +110,7 @@ class Recombination:
         """Build from a scenario's ``[recombination]`` table (unknown keys are errors)."""
         table = dict(table or {})
         for k in table:
-            if k not in _TABLE_KEYS:
-                raise InputError(f"recombination.{k}", table[k], "one of " + ", ".join(_TABLE_KEYS),
-                                 did_you_mean(k, _TABLE_KEYS))
+            registry.choose(f"recombination.{k}", k, _TABLE_KEYS, exact=True, allowed="one of " + ", ".join(_TABLE_KEYS))
         defects = table.pop("defects", [])
         if isinstance(defects, Mapping):
             defects = [defects]
@@ -630,15 +122,10 @@ class Recombination:
 
     def intrinsic_model(self, material) -> str:
         """Canonical name of the intrinsic model used for `material` [-]."""
-        if self.intrinsic is None:
-            return "richter2012" if material.name == "Si" else "constant"
-        fn = _dispatch.pick("recombination.intrinsic", self.intrinsic, INTRINSIC_MODELS, _INTRINSIC_ALIASES)
-        name = next(k for k, v in INTRINSIC_MODELS.items() if v is fn)
-        if name in _SILICON_ONLY and material.name != "Si":
-            raise InputError("recombination.intrinsic", self.intrinsic,
-                             f"a model for {material.name}: {name} is a silicon parametrisation",
-                             'use "constant" (the material\'s Auger and radiative coefficients)')
-        return name
+        if self.intrinsic is None:     # Richter 2012 wherever it applies (silicon), else the record's constants
+            return "richter2012" if registry.applies(registry.get("intrinsic", "richter2012"), material) else "constant"
+        m = registry.pick("intrinsic", self.intrinsic, "recombination.intrinsic")
+        return registry.check_material(m, material, "recombination.intrinsic", self.intrinsic).name
 
     def bgn_model_for(self, eq) -> str | None:
         """The band-gap narrowing model name used inside the rates (None: none) [-]."""
@@ -649,7 +136,7 @@ class Recombination:
         if self.injection_bgn is not None:
             return bool(self.injection_bgn)
         m = self.bgn_model_for(eq)
-        return m is not None and _dispatch.normalise(m) in INJECTION_BGN_MODELS
+        return m is not None and registry.pick("bgn", m, "recombination.bandgap_narrowing").injection
 
     def prepare(self, material, eq, thickness_cm, shape=None, index=None) -> "PreparedRates":
         """Per-point constants of every mechanism, flattened.
@@ -685,13 +172,10 @@ class Recombination:
         return {k: v.reshape(shape) for k, v in zip(MECHANISMS, r)}
 
 
+
 _EQ_FIELDS = ("temperature_K", "donors_cm3", "acceptors_cm3", "n0_cm3", "p0_cm3", "nc_cm3", "nv_cm3",
               "effective_gap_eV", "intrinsic_level_eV", "fermi_level_eV")
 
-
-def _j0_scale(material, T_K, reference_K):
-    """n_i^2(T) / n_i^2(reference) of the material, no narrowing [-] (a J0 is proportional to n_i^2)."""
-    return np.exp(2.0 * (ni_nc_nv_eg(material, T_K, log=True) - ni_nc_nv_eg(material, reference_K, log=True)))
 
 
 def _eq_shape(eq):
@@ -764,7 +248,7 @@ class PreparedRates:
         self.p1 = np.stack(p1s, axis=-1) if p1s else np.zeros((P, 0))
         # intrinsic
         self.intrinsic = rec.intrinsic_model(material)
-        A, C, e, B = INTRINSIC_MODELS[self.intrinsic](material, n0, p0, self.T)
+        A, C, e, B = registry.get("intrinsic", self.intrinsic).call(material, n0, p0, self.T)
         self.aug_A = np.broadcast_to(A, (P,)).astype(float)
         self.aug_C, self.aug_e = np.broadcast_to(C, (P,)).astype(float), float(e)
         self.rad_B = (np.broadcast_to(B, (P,)) * _gather(rec.B_rel, shape, index)
@@ -868,8 +352,8 @@ class PreparedRates:
         n0, p0 = self.n0, self.p0
         exc = excess_product_cm6(n0, p0, dn, shift)
         srh = _srh_rates(n0, p0, dn, self.srh_a, self.srh_b, self.n1, self.p1, shift) if self.n1.shape[-1] else 0.0 * dn
-        rad = self.rad_B * exc
-        aug = exc * (self.aug_A + self.aug_C * dn**self.aug_e)
+        rad = self.rad_B * exc          # `radiative_band_to_band` with B_rel (1 - f_PR) B folded into rad_B
+        aug = auger_from_coefficients(exc, dn, self.aug_A, self.aug_C, self.aug_e)
         sj = surface_j0(n0, p0, dn, self.s_j0, self.s_W, shift, J0_reference_K=None)   # s_j0 is already at T
         surf = sj + self.s_s * dn
         return srh, rad, aug, surf

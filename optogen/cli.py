@@ -69,7 +69,22 @@ def _parser() -> argparse.ArgumentParser:
 
     s = sub.add_parser("schema", help="print the scenario keys (or, with --json, a JSON Schema for editors)")
     s.add_argument("--json", action="store_true", help="print the JSON Schema of a scenario file")
+    add_analyse_parser(sub)
     return p
+
+
+def add_analyse_parser(subparsers) -> argparse.ArgumentParser:
+    """Add `optogen analyse SCENARIO [--json] [--out DIR] [--set K=V] [--folder DIR]` to the CLI parsers."""
+    a = subparsers.add_parser("analyse", help="analyse measured lifetime or photoconductance data "
+                                              "(a scenario with a [measurement] section)")
+    a.add_argument("scenario", help="scenario file (TOML) with [absorber] and [measurement]")
+    a.add_argument("--json", action="store_true", help="print the result as JSON")
+    a.add_argument("--out", metavar="DIR", help="write analysis.json/.nc, curve CSVs and PNG plots into DIR")
+    a.add_argument("--set", metavar="KEY=VALUE", action="append", default=[],
+                   help="override a scenario field, e.g. --set measurement.optical_factor=0.9 (repeatable)")
+    a.add_argument("--folder", metavar="DIR", help="analyse every CSV of DIR with this scenario (one row each)")
+    a.add_argument("--debug", action="store_true", help=argparse.SUPPRESS)
+    return a
 
 
 def _overrides(items):
@@ -127,6 +142,9 @@ def _dispatch(args, argv=None) -> int:
         return _schema(args)
     if args.command == "demos":
         return _demos()
+    if args.command == "analyse":
+        from .analysis import main as analyse_main      # scipy and the fits: only when asked for
+        return analyse_main(args)
     from .scenario import MAX_POINTS_WITHOUT_CONFIRMATION, load_scenario
     demo = getattr(args, "demo", None)
     if demo is not None and args.scenario is not None:

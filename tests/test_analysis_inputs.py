@@ -8,7 +8,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from optogen.analysis import add_subcommand, analyse, analyse_folder, main
+from optogen.analysis import analyse, analyse_folder, main
+from optogen.cli import add_analyse_parser
 from optogen.analysis.data import read_lifetime_csv, read_record_csv
 from optogen.errors import InputError
 
@@ -107,7 +108,7 @@ def test_demo_iron_and_transient(capsys):
 
 def test_subcommand_runs_and_prints(tmp_path, capsys):
     parser = argparse.ArgumentParser(prog="optogen")
-    add_subcommand(parser.add_subparsers(dest="command"))
+    add_analyse_parser(parser.add_subparsers(dest="command"))
     args = parser.parse_args(["analyse", str(DEMO / "n_wafer_lifetime.toml"), "--out", str(tmp_path),
                               "--set", "measurement.suns=0.5"])
     assert main(args) == 0

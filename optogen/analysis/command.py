@@ -8,7 +8,6 @@ read the data (`data`), convert a photoconductance record (`photoconductance`), 
 """
 from __future__ import annotations
 
-import argparse
 import copy
 import dataclasses
 import tomllib
@@ -189,18 +188,18 @@ class AnalysisResult:
         s, b, u, im = self.sample, self.fit.best, self.uncertainty, self.implied
         dop = f"N_A = {s.acceptors_cm3:.3g}" if s.kind == "p" else f"N_D = {s.donors_cm3:.3g}"
         lines = [f"optogen analysis: {self.title}",
-                 f"Sample: {s.kind}-type {s.material.name}, {dop} cm-3, W = {s.thickness_cm * 1e4:.4g} um, "
+                 f"Sample: {s.kind}-type {s.material.name}, {dop} cm^-3, W = {s.thickness_cm * 1e4:.4g} um, "
                  f"{s.temperature_K:g} K; {self.kind} data {Path(self.data.path).name}: {self.data.delta_n_cm3.size} "
-                 f"points, dn {self.data.delta_n_cm3.min():.3g}-{self.data.delta_n_cm3.max():.3g} cm-3",
-                 f"J0 (both surfaces, global fit): {_pm(b.J0_fA_cm2, u['J0_std_fA_cm2'])} fA/cm2 "
+                 f"points, dn {self.data.delta_n_cm3.min():.3g}-{self.data.delta_n_cm3.max():.3g} cm^-3",
+                 f"J0 (both surfaces, global fit): {_pm(b.J0_fA_cm2, u['J0_std_fA_cm2'])} fA cm^-2 "
                  f"(95 % CI {u['J0_ci95_fA_cm2'][0]:.3g}-{u['J0_ci95_fA_cm2'][1]:.3g})"
                  if "J0" not in b.at_bound and np.isfinite(u["J0_std_fA_cm2"]) else
                  f"J0 (both surfaces, global fit): not resolved by these data (the fit runs to {b.J0_fA_cm2:.3g} "
-                 "fA/cm2: the surface term is too small, or, in low injection, indistinguishable from SRH)"]
+                 "fA cm^-2: the surface term is too small, or, in low injection, indistinguishable from SRH)"]
         if self.kane_swanson is not None:
             ks = self.kane_swanson
-            lines.append(f"J0 (Kane-Swanson 1985, dn {ks.window_cm3[0]:.3g}-{ks.window_cm3[1]:.3g} cm-3, "
-                         f"{ks.points} points): {_pm(ks.J0_fA_cm2, ks.J0_std_fA_cm2)} fA/cm2")
+            lines.append(f"J0 (Kane-Swanson 1985, dn {ks.window_cm3[0]:.3g}-{ks.window_cm3[1]:.3g} cm^-3, "
+                         f"{ks.points} points): {_pm(ks.J0_fA_cm2, ks.J0_std_fA_cm2)} fA cm^-2")
         else:
             lines.append(f"J0 (Kane-Swanson 1985): not applicable, {self.kane_swanson_note}")
         lvl = (f"level held at Ev + {b.level_eV:.3f} eV" if b.half == "fixed"
@@ -220,7 +219,7 @@ class AnalysisResult:
             if self.ids.curves == 1:
                 lines.append("  one curve fixes only two SRH combinations: the level is not determined "
                              "(use several wafers of the same defect: optogen analyse --folder)")
-        lines.append(f"Implied at 1 sun (J_gen = {im['jgen_1sun_mA_cm2']:.4g} mA/cm2): "
+        lines.append(f"Implied at 1 sun (J_gen = {im['jgen_1sun_mA_cm2']:.4g} mA cm^-2): "
                      f"iVoc = {_pm(im['voc_1sun_V'] * 1e3, u['voc_1sun_std_V'] * 1e3)} mV, "
                      f"iFF = {_pm(im['ff_1sun'] * 100, u['ff_1sun_std'] * 100)} %")
         if im.get("suns") not in (None, 1.0):
@@ -235,7 +234,7 @@ class AnalysisResult:
                      f"iVoc would rise by {c['gain_mV'][lim]:.2f} mV (others: {gains})")
         if self.iron is not None:
             lines.append(f"Iron (Zoth & Bergholz 1990): N_Fe = {_pm(self.iron.density_cm3, self.iron.density_std_cm3)} "
-                         f"cm-3 (curves cross at {self.iron.crossover_cm3:.3g} cm-3)")
+                         f"cm^-3 (curves cross at {self.iron.crossover_cm3:.3g} cm^-3)")
         for n in self.notes:
             lines.append(f"Note: {n}")
         return "\n".join(lines)
@@ -273,7 +272,7 @@ class AnalysisResult:
         cur = self.curves()
         lt = cur["lifetime"]
         ds = xr.Dataset({k: ("delta_n", np.asarray(v, float)) for k, v in lt.items() if k != "delta_n_cm3"},
-                        coords={"delta_n": ("delta_n", lt["delta_n_cm3"], {"units": "cm-3"})})
+                        coords={"delta_n": ("delta_n", lt["delta_n_cm3"], {"units": "cm^-3"})})
         ds["implied_current_mA_cm2"] = ("jv", np.asarray(cur["jv"]["current_mA_cm2"]))
         ds["implied_voltage_V"] = ("jv", np.asarray(cur["jv"]["voltage_V"]))
         flat = _flatten(self.to_dict())
@@ -338,7 +337,7 @@ def _core(smp: Sample, data: LifetimeData, meas: dict, jgen_1sun_mA_cm2: float):
         use &= data.delta_n_cm3 <= hi
     if use.sum() < 5:
         raise InputError("measurement.fit_low_cm3", lo, "a fit range holding at least 5 measured points",
-                         f"{int(use.sum())} points between {lo} and {hi} cm-3")
+                         f"{int(use.sum())} points between {lo} and {hi} cm^-3")
     mech = mechanisms(smp, data.delta_n_cm3)
     corr = corrected_inverse_lifetime_s(mech, data.tau_s)
     sig = None if data.tau_uncertainty_s is None else data.tau_uncertainty_s / data.tau_s**2
@@ -565,20 +564,6 @@ def analyse_folder(source, folder, overrides: Mapping[str, Any] | None = None, *
 # ---------------------------------------------------------------------------
 # Command line
 # ---------------------------------------------------------------------------
-
-def add_subcommand(subparsers) -> argparse.ArgumentParser:
-    """Add `optogen analyse SCENARIO [--json] [--out DIR] [--set K=V] [--folder DIR]` to the CLI parsers."""
-    a = subparsers.add_parser("analyse", help="analyse measured lifetime or photoconductance data "
-                                              "(a scenario with a [measurement] section)")
-    a.add_argument("scenario", help="scenario file (TOML) with [absorber] and [measurement]")
-    a.add_argument("--json", action="store_true", help="print the result as JSON")
-    a.add_argument("--out", metavar="DIR", help="write analysis.json/.nc, curve CSVs and PNG plots into DIR")
-    a.add_argument("--set", metavar="KEY=VALUE", action="append", default=[],
-                   help="override a scenario field, e.g. --set measurement.optical_factor=0.9 (repeatable)")
-    a.add_argument("--folder", metavar="DIR", help="analyse every CSV of DIR with this scenario (one row each)")
-    a.add_argument("--debug", action="store_true", help=argparse.SUPPRESS)
-    return a
-
 
 def _overrides(items):
     out = {}

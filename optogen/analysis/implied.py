@@ -34,7 +34,7 @@ class Implied:
     """Implied figures at one light level, for S recombination variants or parameter samples.
 
     voc_V (S,) [V]; ff (S,) [-]; delta_n_oc_cm3 (S,) [cm^-3]; vmp_V, jmp_mA_cm2 (S,);
-    jgen_mA_cm2 [mA/cm^2]; voltage_V, current_mA_cm2: the J-V curve of the first variant (M,).
+    jgen_mA_cm2 [mA cm^-2]; voltage_V, current_mA_cm2: the J-V curve of the first variant (M,).
     """
 
     voc_V: np.ndarray
@@ -88,7 +88,7 @@ def implied_from_rates(smp: Sample, U_cm3_s, jgen_mA_cm2: float, delta_n_cm3=GRI
     ----------
     smp : the sample (thickness, statistics)
     U_cm3_s : total recombination rate on the grid, (M,) or (S, M) [cm^-3 s^-1], rising with dn
-    jgen_mA_cm2 : photogeneration current J_gen = q W G [mA/cm^2]
+    jgen_mA_cm2 : photogeneration current J_gen = q W G [mA cm^-2]
     delta_n_cm3 : the grid (M,) [cm^-3]
     splitting_eV : V(dn) on the grid (default `splitting_on_grid_eV`) [eV]
 
@@ -101,7 +101,7 @@ def implied_from_rates(smp: Sample, U_cm3_s, jgen_mA_cm2: float, delta_n_cm3=GRI
     U = np.atleast_2d(np.asarray(U_cm3_s, float))
     V = splitting_on_grid_eV(smp, dn) if splitting_eV is None else np.asarray(splitting_eV, float)
     W = smp.thickness_cm
-    J = jgen_mA_cm2 - q_C * W * U * 1e3                       # (S, M) [mA/cm^2]
+    J = jgen_mA_cm2 - q_C * W * U * 1e3                       # (S, M) [mA cm^-2]
     S, M = J.shape
     # open circuit: first sign change of J along the grid
     neg = J <= 0

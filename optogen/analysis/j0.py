@@ -29,7 +29,7 @@ from optogen.recombination import surface_j0
 
 from .model import Mechanisms
 
-#: bounds of the fitted parameters: J0 [fA/cm^2], tau_n0 and tau_p0 [s]
+#: bounds of the fitted parameters: J0 [fA cm^-2], tau_n0 and tau_p0 [s]
 J0_BOUNDS_fA_cm2 = (1e-3, 1e5)
 TAU_BOUNDS_s = (1e-9, 10.0)
 #: levels closer than this to a band edge are not searched [eV]
@@ -48,11 +48,11 @@ Z95 = 1.959963984540054
 class KaneSwanson:
     """Result of the slope method.
 
-    J0_fA_cm2, J0_std_fA_cm2: J0 of both surfaces together and its 1-sigma uncertainty [fA/cm^2];
+    J0_fA_cm2, J0_std_fA_cm2: J0 of both surfaces together and its 1-sigma uncertainty [fA cm^-2];
     inv_tau_bulk_s, inv_tau_bulk_std_s: the intercept, 1/tau_SRH in the window [1/s];
     slope_cm3_s: d(1/tau_corr)/d(dn) of the textbook form, J0/(q n_i^2 W) with n_i^2 = n0 p0
     (the dark product) [cm^3/s]; window_cm3: (low, high) [cm^-3]; points: points used [-];
-    covariance: of (intercept [1/s], J0 [fA/cm^2]).
+    covariance: of (intercept [1/s], J0 [fA cm^-2]).
     """
 
     J0_fA_cm2: float
@@ -66,7 +66,7 @@ class KaneSwanson:
 
     @property
     def J0_ci95_fA_cm2(self) -> tuple:
-        """95 % confidence interval of J0 [fA/cm^2] (normal approximation)."""
+        """95 % confidence interval of J0 [fA cm^-2] (normal approximation)."""
         return (self.J0_fA_cm2 - Z95 * self.J0_std_fA_cm2, self.J0_fA_cm2 + Z95 * self.J0_std_fA_cm2)
 
 
@@ -105,8 +105,8 @@ def j0_kane_swanson1985(delta_n_cm3, inv_tau_corrected_s, n0_cm3, p0_cm3, thickn
                         sigma_inv_tau_s=None) -> KaneSwanson:
     """Surface J0 from the slope of the corrected inverse lifetime (Kane & Swanson 1985).
 
-    1/tau_corr(dn) = 1/tau_SRH + J0 x(dn),   x(dn) = U_s(J0 = 1 fA/cm^2)/dn
-                   = (n0 + p0 + dn) e^(-shift) / (q n0 p0 W)  [per fA/cm^2, x 1e-15 A]
+    1/tau_corr(dn) = 1/tau_SRH + J0 x(dn),   x(dn) = U_s(J0 = 1 fA cm^-2)/dn
+                   = (n0 + p0 + dn) e^(-shift) / (q n0 p0 W)  [per fA cm^-2, x 1e-15 A]
 
     from `optogen.recombination.surface_j0` (the forward model's J0 law), fitted as a straight
     line in x over the points given (the window is chosen by the caller).  Without an
@@ -124,7 +124,7 @@ def j0_kane_swanson1985(delta_n_cm3, inv_tau_corrected_s, n0_cm3, p0_cm3, thickn
 
     Returns
     -------
-    KaneSwanson: J0 of both surfaces together [fA/cm^2] with its uncertainty, the intercept
+    KaneSwanson: J0 of both surfaces together [fA cm^-2] with its uncertainty, the intercept
     1/tau_SRH [1/s], the textbook slope [cm^3/s].
 
     References
@@ -161,7 +161,7 @@ def kane_swanson_in_window(mech: Mechanisms, inv_tau_corrected_s, sigma_inv_tau_
     lo, hi = default_window_cm3(mech, low, high)
     sel = (mech.delta_n_cm3 >= lo) & (mech.delta_n_cm3 <= hi) & np.isfinite(inv_tau_corrected_s)
     if sel.sum() < 5:
-        return None, (f"{int(sel.sum())} measured points in the window {lo:.3g}-{hi:.3g} cm-3 (5 needed): the data "
+        return None, (f"{int(sel.sum())} measured points in the window {lo:.3g}-{hi:.3g} cm^-3 (5 needed): the data "
                       "do not reach high injection (dn >> doping); J0 comes from the global fit")
     s = None if sigma_inv_tau_s is None else np.asarray(sigma_inv_tau_s)[sel]
     return j0_kane_swanson1985(mech.delta_n_cm3[sel], np.asarray(inv_tau_corrected_s)[sel], mech.sample.n0_cm3,
@@ -177,7 +177,7 @@ class Branch:
     """One solution of the global fit.
 
     half: "lower" (E_t below E_i), "upper" (above) or "fixed" (level held) [-];
-    theta: (ln J0 [ln fA/cm^2], ln tau_n0 [ln s], ln tau_p0 [ln s], E_t - E_v [eV]);
+    theta: (ln J0 [ln fA cm^-2], ln tau_n0 [ln s], ln tau_p0 [ln s], E_t - E_v [eV]);
     covariance: of theta (4x4; zero row/column for a held level);
     chi2: weighted sum of squares [-]; dof: points - parameters [-];
     at_bound: names of parameters at a bound of the search (their uncertainty does not apply) [-];

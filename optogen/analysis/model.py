@@ -6,9 +6,9 @@
   (`Recombination.prepare(...).rates`, Richter 2012 for Si by default);
 * 1/tau_SRH = U_SRH/dn from `optogen.recombination.srh_shockley_read_hall1952` with n1, p1 from
   `trap_densities_cm3`;
-* the surface term J0 x(dn): x = U_s(J0 = 1 fA/cm^2)/dn from `optogen.recombination.surface_j0`
+* the surface term J0 x(dn): x = U_s(J0 = 1 fA cm^-2)/dn from `optogen.recombination.surface_j0`
   (the one J0 law, Kane & Swanson 1985), J0 the SUM of both surfaces' J0 at the measurement
-  temperature [fA/cm^2];
+  temperature [fA cm^-2];
 
 all with the injection-dependent narrowing shift ln(n_i,eff^2(n, p)/(n0 p0)) of
 `PreparedRates.ni2_shift` (Schenk 1998 for Si by default).  Nothing is re-derived here: these
@@ -30,8 +30,8 @@ class Mechanisms:
     """Per-point constants of the forward model at excess densities dn (all shape (D,)).
 
     delta_n_cm3 [cm^-3]; shift: ln(n_i,eff^2(n, p)/(n0 p0)) [-]; inv_tau_auger_s, inv_tau_radiative_s:
-    1/tau of the intrinsic mechanisms [1/s]; x_j0: surface 1/tau per fA/cm^2 of summed J0
-    [s^-1 (fA/cm^2)^-1]; excess_product_cm6: n p - n_i,eff^2 [cm^-6].
+    1/tau of the intrinsic mechanisms [1/s]; x_j0: surface 1/tau per fA cm^-2 of summed J0
+    [s^-1 (fA cm^-2)^-1]; excess_product_cm6: n p - n_i,eff^2 [cm^-6].
     """
 
     sample: Sample

@@ -119,7 +119,7 @@ def sample(material, temperature_K: float, donors_cm3: float, acceptors_cm3: flo
 
 
 def one_sun_photocurrent_mA_cm2(sc: Scenario, smp: Sample) -> float:
-    """Photogeneration current of the sample under AM1.5G at 1 sun through the scenario's optics [mA/cm^2].
+    """Photogeneration current of the sample under AM1.5G at 1 sun through the scenario's optics [mA cm^-2].
 
     `optogen.light.standard("AM1.5G")` scaled to 1 sun (`light.scale`), then the generation
     module with the `[optics]` section (`pipeline.setup.generation_of`): J_ph = q integral Phi A dlambda.

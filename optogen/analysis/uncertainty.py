@@ -19,7 +19,7 @@ from .model import Mechanisms
 
 
 def parameter_samples(branch: Branch, n: int, seed: int = 0):
-    """(n, 3) samples of (J0 [fA/cm^2], tau_n0 [s], tau_p0 [s]) from the branch's covariance
+    """(n, 3) samples of (J0 [fA cm^-2], tau_n0 [s], tau_p0 [s]) from the branch's covariance
     (normal in the logarithms, held inside the fit's search bounds), or None where the covariance
     is not finite or a parameter sits at a bound (a parameter the data do not constrain)."""
     cov = branch.covariance[:3, :3]

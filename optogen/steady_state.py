@@ -26,7 +26,7 @@ import numpy as np
 
 from .constants import q_C
 from .errors import InputError, check_range
-from .recombination import MECHANISMS, PreparedRates, Recombination, _eq_shape
+from .recombination import MECHANISMS, PreparedRates, Recombination, _eq_shape, excess_product_cm6
 
 #: relative residual |G - U| / G required at every point [-]
 RTOL = 1e-10
@@ -266,13 +266,29 @@ def _exp_or_inf(x):
 DEGENERATE_KT = 3.0
 
 
-def _state_flat(prep: PreparedRates, dn):
+def _state_flat(prep: PreparedRates, dn, extras: bool = False):
     """Every output quantity (flat) at excess density dn [cm^-3].
 
     Quasi-Fermi levels use the carrier statistics of the narrowing model (prep.statistics):
     Fermi-Dirac, or Boltzmann for an apparent narrowing (klaassen1992), for which the
     splitting is exactly kT ln(n p / n_i,eff^2).  ``degenerate`` is True where either
     quasi-Fermi level lies within DEGENERATE_KT kT of its band edge or inside the band.
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points.
+    dn : ndarray (P,)
+        Excess density [cm^-3].
+    extras : bool
+        Also return the narrowing shift and the total rate at dn, so that the caller
+        (`solve`: residual, implied FF) does not evaluate the narrowing again.
+
+    Returns
+    -------
+    dict of flat output arrays; with extras, (dict, shift [-], U_total(dn) [cm^-3 s^-1]).
+    The injection narrowing is evaluated once at dn and reused for the rates (where dn > 0,
+    the rates' evaluation density d_eval is dn itself).
     """
     shift = prep.ni2_shift(dn)
     with np.errstate(divide="ignore"):
@@ -286,11 +302,16 @@ def _state_flat(prep: PreparedRates, dn):
     degenerate = ((e_qfl - ec) > -DEGENERATE_KT * prep.kT) | (h_qfl < DEGENERATE_KT * prep.kT)
     maj = np.maximum(prep.n0, prep.p0)
     d_eval = np.where(dn > 0, dn, _LOW_INJ * maj)
-    r = prep.rates(d_eval)
+    rest = np.flatnonzero(~(dn > 0))            # dark (or NaN) points: the rates go to d_eval
+    shift_eval = shift
+    if prep.inj_bgn and rest.size:
+        shift_eval = np.array(shift, dtype=float, copy=True)
+        shift_eval[rest] = (prep.take(rest) if rest.size < len(dn) else prep).ni2_shift(d_eval[rest])
+    r = prep.rates(d_eval, shift_eval)
     tot = sum(r)
     with np.errstate(divide="ignore"):
         taus = [np.where(x > 0, d_eval / np.where(x > 0, x, 1.0), np.inf) for x in (*r, tot)]
-    return {
+    out = {
         "delta_n_cm3": dn, "delta_p_cm3": dn, "n_cm3": prep.n0 + dn, "p_cm3": prep.p0 + dn,
         "np_over_ni2": _exp_or_inf(ln_ratio), "log10_np_over_ni2": ln_ratio / np.log(10.0),
         "splitting_eV": e_qfl - h_qfl, "implied_voc_V": e_qfl - h_qfl,
@@ -299,6 +320,13 @@ def _state_flat(prep: PreparedRates, dn):
         "injection_ratio": _exp_or_inf(ldn - np.maximum(prep.log_n0, prep.log_p0)), "limiting_code": np.argmax(np.stack(r), axis=0).astype(np.int8),
         "degenerate": degenerate, "effective_gap_eV": ec,
     }
+    if not extras:
+        return out
+    u = np.array(tot, dtype=float, copy=True)         # U(dn): equal to tot where dn > 0
+    if rest.size:
+        with np.errstate(over="ignore", invalid="ignore"):
+            u[rest] = (prep.take(rest) if rest.size < len(dn) else prep).total(dn[rest])
+    return out, shift, u
 
 
 # ---------------------------------------------------------------------------
@@ -433,85 +461,772 @@ def _operating_point(prep, W, jgen, x, levels=None):
         return v, jgen - q_C * W * sum(prep.rates(d, shift)) * 1e3
 
 
-def _fast_levels(prep):
+class _Levels:
     """eta_n + eta_p of `_qfl_shifts` as a function of (x, Delta n), with per-point constants kept.
 
     Where n/Nc (p/Nv) <= _SERIES_Y_MAX the small-y series of F^-1 (as `_eta_series`, here
     f(y) - f(y0) with f(y) = sum_k A_k y^k; within 1e-12 of the exact inverse), above it the
     exact inverse against the dark value computed once; ln(n/n0) as log1p(Delta n/n0) (or
-    x - ln n0 where n0 lies below ~1e-260 cm^-3).
-    """
-    with np.errstate(over="ignore", under="ignore"):
-        if prep.statistics == "boltzmann":
-            consts = [(log0, None, None, None, None) for log0 in (prep.log_n0, prep.log_p0)]
-        else:
-            from .equilibrium import inverse_log_fermi_dirac_half
-            consts = []
-            for log0, nb in ((prep.log_n0, prep.nc), (prep.log_p0, prep.nv)):
-                ly0 = log0 - np.log(nb)
-                y0 = np.exp(ly0)
-                f0 = y0 * (_JD[0] + y0 * (_JD[1] + y0 * (_JD[2] + y0 * _JD[3])))
-                consts.append((log0, nb, ly0, y0, (f0, inverse_log_fermi_dirac_half(ly0))))
-        tiny = [log0 < -600.0 for log0, *_ in consts]
-        inv0 = [np.exp(-np.where(t, 0.0, c[0])) for t, c in zip(tiny, consts)]
+    x - ln n0 where n0 lies below ~1e-260 cm^-3).  Built by `_fast_levels`; ``take(idx)``
+    gives the subset without recomputing the dark constants.
 
-    def levels(x, d):
-        total = 0.0
-        for (log0, nb, ly0, y0, f), t, i0 in zip(consts, tiny, inv0):
-            lr = np.log1p(d * i0)
-            if t.any():
+    Calling ``levels(x, d, slope=False)`` with x = ln Delta n [ln cm^-3], d = Delta n [cm^-3]
+    returns eta [-], or (eta [-], d eta / dx [-]) with slope=True.  The slope is analytic:
+    d ln(n/n0)/dx = Delta n / n plus, in the series, (Delta n / Nc) f'(y); in the exact branch
+    d F^-1(y)/d ln y (`_dlog_eta`) times Delta n / n.
+
+    References
+    ----------
+    W. B. Joyce and R. W. Dixon, Appl. Phys. Lett. 31, 354 (1977) (the series coefficients A3, A4;
+    as cited at `_JD`).
+    """
+
+    def __init__(self, prep=None):
+        if prep is None:
+            return
+        with np.errstate(over="ignore", under="ignore"):
+            if prep.statistics == "boltzmann":
+                self.carriers = [(log0, None, None, None, None, None) for log0 in (prep.log_n0, prep.log_p0)]
+            else:
+                self.carriers = []
+                for log0, nb in ((prep.log_n0, prep.nc), (prep.log_p0, prep.nv)):
+                    ly0 = log0 - np.log(nb)
+                    y0 = np.exp(ly0)
+                    f0 = y0 * (_JD[0] + y0 * (_JD[1] + y0 * (_JD[2] + y0 * _JD[3])))
+                    # F^-1(y0) for the exact branch: computed where first needed (NaN: not yet)
+                    self.carriers.append((log0, nb, ly0, y0, f0, np.full(ly0.shape, np.nan)))
+            self.tiny = [c[0] < -600.0 for c in self.carriers]
+            self.any_tiny = [bool(t.any()) for t in self.tiny]
+            self.inv0 = [np.exp(-np.where(t, 0.0, c[0])) for t, c in zip(self.tiny, self.carriers)]
+
+    def take(self, idx):
+        """The subset at positions idx [-]."""
+        new = _Levels()
+        new.carriers = [tuple(None if a is None else a[idx] for a in c) for c in self.carriers]
+        new.tiny = [t[idx] for t in self.tiny]
+        new.any_tiny = [bool(t.any()) for t in new.tiny]
+        new.inv0 = [i[idx] for i in self.inv0]
+        return new
+
+    def __call__(self, x, d, slope=False):
+        from .equilibrium import inverse_log_fermi_dirac_half
+        total, dtotal = 0.0, 0.0
+        for (log0, nb, ly0, y0, f0, fi0), t, any_t, i0 in zip(self.carriers, self.tiny, self.any_tiny, self.inv0):
+            r = d * i0
+            lr = np.log1p(r)
+            if any_t:
                 lr = np.where(t, x - log0, lr)
+            if slope:
+                q = r / (1.0 + r)                       # d ln(n/n0)/dx = Delta n / n
+                if any_t:
+                    q = np.where(t, 1.0, q)
             if nb is None:
                 total = total + lr
+                if slope:
+                    dtotal = dtotal + q
                 continue
-            y = y0 + d / nb
-            eta = lr + y * (_JD[0] + y * (_JD[1] + y * (_JD[2] + y * _JD[3]))) - f[0]
-            big = np.flatnonzero(ly0 + lr > np.log(_SERIES_Y_MAX))
+            dy = d / nb
+            y = y0 + dy                                  # n / Nc (p / Nv)
+            eta = lr + y * (_JD[0] + y * (_JD[1] + y * (_JD[2] + y * _JD[3]))) - f0
+            if slope:
+                deta = q + dy * (_JD[0] + y * (2.0 * _JD[1] + y * (3.0 * _JD[2] + 4.0 * y * _JD[3])))
+            big = np.flatnonzero(y > _SERIES_Y_MAX)
             if big.size:
-                eta[big] = inverse_log_fermi_dirac_half(ly0[big] + lr[big]) - f[1][big]
+                new = big[np.isnan(fi0[big])]
+                if new.size:
+                    fi0[new] = inverse_log_fermi_dirac_half(ly0[new])
+                eta[big] = inverse_log_fermi_dirac_half(ly0[big] + lr[big]) - fi0[big]
+                if slope:
+                    deta[big] = q[big] * _dlog_eta(ly0[big] + lr[big])
             total = total + eta
-        return total
-    return levels
+            if slope:
+                dtotal = dtotal + deta
+        return (total, dtotal) if slope else total
 
 
-def _mpp_flat(prep, W, jgen, voc, dn_oc, iters=40):
+def _fast_levels(prep):
+    """The levels eta_n + eta_p of the points of prep as a callable (x, d, slope=False) (`_Levels`).
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points (the dark levels are computed here, once).
+
+    Returns
+    -------
+    _Levels: levels(x [ln cm^-3], d [cm^-3], slope=False) -> eta [-] (and d eta/dx [-]).
+    """
+    return _Levels(prep)
+
+
+def _rate_slopes(prep, dn, shift):
+    """Partial derivatives of the total rate U(Delta n, shift) of `PreparedRates.rates` (analytic).
+
+    With X = n p - n_i,eff^2 = Delta n (n0 + p0 + Delta n) - n0 p0 expm1(shift)
+    (dX/dDelta n = n + p, dX/dshift = -n0 p0 e^shift):
+    radiative B X; Auger X (A + C Delta n^e); J0 surfaces c X / (n0 p0 e^shift),
+    c = J0 / (q W); S surfaces S Delta n / W; SRH per level
+    X a b / (a (n + n1 e^(shift/2)) + b (p + p1 e^(shift/2))), a = 1/tau_n0, b = 1/tau_p0.
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points.
+    dn : ndarray (P,)
+        Excess density Delta n > 0 [cm^-3].
+    shift : ndarray (P,) or float
+        ln(n_i,eff^2(n, p) / (n0 p0)) at dn [-] (0.0 without injection narrowing).
+
+    Returns
+    -------
+    dU/dDelta n at fixed shift [s^-1], dU/dshift at fixed Delta n [cm^-3 s^-1], arrays (P,).
+
+    References
+    ----------
+    W. Shockley and W. T. Read, Phys. Rev. 87, 835 (1952), doi:10.1103/PhysRev.87.835 (SRH);
+    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (the J0 law, from memory).
+    """
+    n0, p0 = prep.n0, prep.p0
+    n, p = n0 + dn, p0 + dn
+    shifted = np.ndim(shift) > 0 or shift != 0.0
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+        exc = excess_product_cm6(n0, p0, dn, shift)
+        x_d = n + p
+        de = dn ** prep.aug_e
+        aug = prep.aug_A + prep.aug_C * de
+        u_d = (prep.rad_B + aug) * x_d + exc * (prep.aug_e * prep.aug_C) * (de / dn) + prep.s_s
+        if shifted:
+            n0p0 = n0 * p0
+            es = np.exp(shift)
+            x_s = -np.where(n0p0 > 0, n0p0 * es, 0.0)
+            u_s = (prep.rad_B + aug) * x_s
+        else:
+            u_s = 0.0
+        if np.any(prep.s_j0 > 0):
+            c = prep.s_j0 * 1e-15 / (q_C * prep.s_W)           # rounded as in `surface_j0` (J0 may be subnormal)
+            ni2 = n0 * p0 * np.exp(shift) if shifted else n0 * p0
+            on = c > 0
+            u_d = u_d + np.where(on, c * x_d / ni2, 0.0)     # as `surface_j0`: c before 1 / (n0 p0)
+            if shifted:
+                u_s = u_s - np.where(on, c * n * p / ni2, 0.0)     # c first: n0 p0 may be ~1e-300
+        if prep.n1.shape[-1]:
+            a, b = prep.srh_a, prep.srh_b
+            n1, p1 = prep.n1, prep.p1
+            if shifted:
+                h = np.exp(0.5 * shift)[..., None]
+                n1, p1 = n1 * h, p1 * h
+            den = a * (n[:, None] + n1) + b * (p[:, None] + p1)
+            ok = den > 0
+            r = np.where(ok, a * b / np.where(ok, den, 1.0) ** 2, 0.0)
+            u_d = u_d + (r * (x_d[:, None] * den - exc[:, None] * (a + b))).sum(-1)
+            if shifted:
+                u_s = u_s + (r * (x_s[:, None] * den - exc[:, None] * 0.5 * (a * n1 + b * p1))).sum(-1)
+    return u_d, u_s
+
+
+#: forward step in x = ln Delta n for the slope of the injection narrowing [-] (see `_shift_slope`)
+_SHIFT_STEP = 1e-7
+#: below this Delta n / min(n0, p0) the narrowing slope is taken by the complex step [-]
+#: (the same limit as `PreparedRates.ni2_shift` uses for its cancellation-free difference)
+_SHIFT_SMALL = 1e-2
+
+
+def _shift_slope(prep, dn, shift, need=None):
+    """d shift / d ln Delta n of the injection narrowing [-] (0.0 without one).
+
+    shift(x) = (dEg(n0 + e^x, p0 + e^x) - dEg(n0, p0)) / kT.  Where Delta n >= 1e-2 min(n0, p0)
+    a forward difference over _SHIFT_STEP = 1e-7 in x from the shift already known at x (one more
+    evaluation of the narrowing; truncation 5e-8 |shift''|, rounding ~ 1e-16 (dEg/kT) / 1e-7, both
+    ~1e-7 at most: a shift of P's maximum by ~1e-7 in x, nothing in the FF).
+    Below, where the shift is a tiny difference of two nearly equal narrowings, the complex
+    step Delta n Im dEg(n + i h, p + i h) / (h kT), exact to rounding (W. Squire and G. Trapp,
+    SIAM Rev. 40, 110 (1998), doi:10.1137/S003614459631241X).
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points.
+    dn : ndarray (P,)
+        Excess density Delta n > 0 [cm^-3].
+    shift : ndarray (P,) or float
+        The shift at dn, as `PreparedRates.ni2_shift(dn, precise=False)` [-].
+    need : ndarray (P,) of bool, optional
+        Points whose slope is wanted (default all; elsewhere 0.0).
+
+    Returns
+    -------
+    ndarray (P,) or 0.0: d shift / d ln Delta n [-].
+    """
+    if not prep.inj_bgn:
+        return 0.0
+    out = np.zeros(len(dn))
+    with np.errstate(invalid="ignore"):
+        small = dn < _SHIFT_SMALL * np.minimum(prep.n0, prep.p0)
+    big = ~small
+    if need is not None:
+        small, big = small & need, big & need
+    with np.errstate(over="ignore", invalid="ignore", under="ignore"):
+        for sel, use_complex in ((np.flatnonzero(big), False), (np.flatnonzero(small), True)):
+            if sel.size == 0:
+                continue
+            all_ = sel.size == len(dn)
+            sub = None if all_ else (prep.T[sel], prep.nd[sel], prep.na[sel])
+            n0, p0, d, kT = (a if all_ else a[sel] for a in (prep.n0, prep.p0, dn, prep.kT))
+            if use_complex:
+                h = 1e-30 * (n0 + p0 + 2.0 * d)
+                out[sel] = d * np.imag(prep._bgn(n0 + d + 1j * h, p0 + d + 1j * h, sub)) / (h * kT)
+            else:
+                dh = d * np.exp(_SHIFT_STEP)
+                bgn0 = prep.bgn0 if all_ else prep.bgn0[sel]
+                s0 = shift if all_ else np.asarray(shift)[sel]
+                out[sel] = ((prep._bgn(n0 + dh, p0 + dh, sub) - bgn0) / kT - s0) / _SHIFT_STEP
+    return out
+
+
+def _power_point(prep, W, jgen, x, levels, shift=None, need=None):
+    """An operating point of the implied J-V at x = ln Delta n and its slopes (analytic but the narrowing's).
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points.
+    W : ndarray (P,)
+        Thickness [cm].
+    jgen : ndarray (P,)
+        Photocurrent J_gen [mA/cm^2].
+    x : ndarray (P,)
+        ln Delta n [ln cm^-3].
+    levels : callable
+        From `_fast_levels(prep)`.
+    shift : ndarray (P,), optional
+        The narrowing shift at e^x if already known [-] (else evaluated, precise=False).
+    need : ndarray (P,) of bool, optional
+        Points whose slopes are wanted (default all; elsewhere the narrowing's slope is 0).
+
+    Returns
+    -------
+    V [V], J [mA/cm^2], dV/dx [V], dJ/dx [mA/cm^2], shift [-], d shift/dx [-]: V the splitting
+    kT (eta_n + eta_p - shift), J = J_gen - q W U 1e3; dV/dx and dJ/dx from the analytic
+    slopes of the levels (`_fast_levels`) and of the rates (`_rate_slopes`), with the
+    narrowing's slope from `_shift_slope`.
+    """
+    with np.errstate(over="ignore", invalid="ignore", under="ignore", divide="ignore"):
+        d = np.exp(x)
+        if shift is None:
+            shift = prep.ni2_shift(d, precise=False)
+        ds = _shift_slope(prep, d, shift, need)
+        eta, deta = levels(x, d, slope=True)
+        u = sum(prep.rates(d, shift))
+        u_d, u_s = _rate_slopes(prep, d, shift)
+        c = q_C * W * 1e3
+        v = prep.kT * (eta - shift)
+        dv = prep.kT * (deta - ds)
+        j = jgen - c * u
+        dj = -c * (d * u_d + u_s * ds)
+    return v, j, dv, dj, shift, ds
+
+
+#: the Newton search stops when its step in x = ln Delta n is below this [-]: P is flat at its
+#: maximum, an error dx in x costs ~ |P''/P| dx^2 / 2 of P (below 1e-10 of the FF here)
+_MPP_XTOL = 1e-5
+#: a secant step below this (through iterates closer than _SECANT_BELOW) is taken without a
+#: further slope evaluation [-]: its own error is a few % of it at most (x error < 1e-5)
+_MPP_POLISH = 3e-4
+_MPP_ITERS = 60
+#: secant slope of dP/dx once two iterates are this close in x; farther, the diode-model step [-]
+_SECANT_BELOW = 0.1
+#: points of the coarse scan of P over the bracket, to find every local maximum [-]
+_MPP_SCAN = 16
+#: a local maximum of the scan within this fraction of the maximum found (or above) is refined too [-]
+_MPP_KEEP = 1e-2
+
+
+def _diode_model_step(v, j, dv, dj, jgen):
+    """Step t in x = ln Delta n to the maximum power of the local diode model at an operating point [-].
+
+    Model: V(x + t) = V + V' t, J(x + t) = J_gen - R e^(a t) with R = J_gen - J = q W U 1e3 and
+    a = -J'/R = d ln U/dx: exact for an ideal diode (U ~ e^(a x), V linear in x).  Its
+    d(V J)/dt = 0 gives, with u = -a t, rho = R / J_gen, k = a V / V',
+    e^u = rho (1 + k - u), solved from u = ln(rho (1 + k)) by one fixed-point step
+    u = ln(rho (1 + k - u)) and three Newton steps (convex, increasing; to ~1e-7, enough for a
+    step proposal).  At the steady state (rho = 1, a = 1 in low injection)
+    this is the ideal-diode relation Voc/kT = Vmp/kT + ln(1 + Vmp/kT).
+
+    Parameters
+    ----------
+    v, j, dv, dj : ndarray
+        V [V], J [mA/cm^2] and their slopes in x [V], [mA/cm^2] (`_power_point`).
+    jgen : ndarray
+        Photocurrent J_gen [mA/cm^2].
+
+    Returns
+    -------
+    t : ndarray, the step in x [-] (NaN where the model has no maximum).
+
+    References
+    ----------
+    M. A. Green, Solar Cells (Prentice-Hall, 1982), ch. 5 (the ideal-diode maximum-power
+    condition; from memory).
+    """
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        r = jgen - j
+        a = -dj / r
+        rho = r / jgen
+        k = a * v / dv
+        u = np.log(rho * (1.0 + k))
+        arg = rho * (1.0 + k - u)                        # one fixed-point step, then Newton
+        u = np.where(arg > 0, np.log(np.where(arg > 0, arg, 1.0)), u)
+        for _ in range(3):                               # to ~1e-7 over rho in [0.01, 1], k in [0.01, 1e3]
+            eu = np.exp(u)
+            u = u - (eu - rho * (1.0 + k - u)) / (eu + rho)
+        return -u / a
+
+
+def _mpp_newton(prep, levels, W, jgen, x, lo, hi, kink=None):
+    """Local maximum of P = V J in x = ln Delta n inside [lo, hi], by safeguarded Newton on dP/dx.
+
+    dP/dx = V' J + V J' from `_power_point` (analytic slopes).  The slope of dP/dx: the
+    secant through the last two iterates where they lie within _SECANT_BELOW or straddle the
+    maximum; else the step to the maximum of the local diode model (`_diode_model_step`).
+    Every iterate moves one end of [lo, hi] by the sign of dP/dx; a step that leaves it, or
+    is not below half the step before last, is replaced by bisection.  Ends where the step is
+    below _MPP_XTOL (the iterate is the answer) or, from a secant through iterates closer than
+    _SECANT_BELOW, below _MPP_POLISH (the step is taken and only V and J are evaluated there:
+    its error is a small fraction of the step), or where the bracket is narrower than _MPP_XTOL.
+    A kink of P (`_narrowing_kink_x`) is crossed only from the point _KINK_SIDE beside it to the
+    one on the other side (the slope of the narrowing is a forward difference, and a secant or a
+    small last step across the kink would not hold); a secant is never taken across it.
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the C candidates.
+    levels : _Levels
+        Their levels (`_fast_levels`).
+    W, jgen : ndarray (C,)
+        Thickness [cm] and photocurrent [mA/cm^2].
+    x, lo, hi : ndarray (C,)
+        Start and bracket in ln Delta n [ln cm^-3], lo < x < hi.
+    kink : ndarray (C,), optional
+        ln Delta n of a kink of P [ln cm^-3], NaN where none.
+
+    Returns
+    -------
+    x [ln cm^-3], V [V], J [mA/cm^2] at the maximum: arrays (C,).  V with the series levels
+    of `_fast_levels` (within 1e-12 kT of the exact ones of `_state_flat`).
+
+    References
+    ----------
+    W. H. Press, S. A. Teukolsky, W. T. Vetterling and B. P. Flannery, Numerical Recipes,
+    3rd ed. (Cambridge, 2007), sec. 9.4 (Newton with bracketing and bisection).
+    """
+    C = len(prep)
+    fx, fv, fj = (np.full(C, np.nan) for _ in range(3))
+    act = np.arange(C)                                   # candidates in the working arrays
+    live = np.ones(C, bool)                              # still iterating (else waiting to be dropped)
+    pol = np.zeros(C, bool)                              # at a polishing step: only V, J wanted
+    sub, lv = prep, levels
+    x_prev, g_prev = np.full(C, np.nan), np.full(C, np.nan)
+    dx_old, dx = np.full(C, np.inf), np.full(C, np.inf)
+    kk = np.full(C, np.nan) if kink is None else np.asarray(kink, dtype=float).copy()
+    kinked = bool(np.isfinite(kk).any())
+    for it in range(_MPP_ITERS + 1):
+        if not live.any():
+            break
+        v, j, dv, dj, _, _ = _power_point(sub, W, jgen, x, lv, need=live & ~pol)
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+            # a polishing step ends: keep it where P is not lower than at the iterate before
+            k = np.flatnonzero(pol)
+            if k.size:
+                better = v[k] * j[k] >= fv[act[k]] * fj[act[k]]
+                kb = k[better]
+                fx[act[kb]], fv[act[kb]], fj[act[kb]] = x[kb], v[kb], j[kb]
+                live[k], pol[k] = False, False
+            g = dv * j + v * dj                          # dP/dx
+            up = g > 0
+            lo = np.where(up, x, lo)
+            hi = np.where(up, hi, x)                     # g < 0 (or not a number): the maximum is below
+            secant = (g - g_prev) / (x - x_prev)
+            # the secant once the iterates are close or straddle the maximum; else the diode model
+            close = np.abs(x - x_prev) < _SECANT_BELOW
+            use_sec = np.isfinite(secant) & (secant < 0) & (close | (up != (g_prev > 0)))
+            if kinked:
+                side = np.sign(x - kk)                   # 0 or NaN: no kink
+                use_sec &= ~(side * np.sign(x_prev - kk) < 0)
+            xn = x - g / secant
+            m = np.flatnonzero(~use_sec)
+            if m.size:
+                xn[m] = x[m] + _diode_model_step(v[m], j[m], dv[m], dj[m], jgen[m])
+            # bisection where the step leaves the bracket or is not below half the one before last
+            inside = (xn > lo) & (xn < hi) & ~(np.abs(xn - x) > 0.5 * dx_old)
+            xn = np.where(inside, xn, 0.5 * (lo + hi))
+            if kinked:
+                # across a kink: first to the point beside it, from there to the one on the other side
+                cross = side * np.sign(xn - kk) < 0
+                beside = np.abs(x - kk) <= 1.5 * _KINK_SIDE
+                xn = np.where(cross, kk + np.where(beside, -side, side) * _KINK_SIDE, xn)
+                # both points beside the kink send the search across it: the kink itself is the maximum
+                stop = (cross & beside & ~(hi - lo > 4.0 * _KINK_SIDE)) | (g == 0)
+                step_ok = inside & ~cross
+            else:
+                stop, step_ok = g == 0, inside
+            dx_old, dx = dx, np.abs(xn - x)
+            done = live & ((step_ok & ~(dx > _MPP_XTOL)) | stop | ~(hi - lo > _MPP_XTOL))
+            # a small step from a secant through close iterates: taken, then only V and J there
+            polish = live & ~done & step_ok & use_sec & close & ~(dx > _MPP_POLISH)
+        if it >= _MPP_ITERS - 1:
+            done = live.copy()
+            polish[:] = False
+        k = np.flatnonzero(done | polish)
+        fx[act[k]], fv[act[k]], fj[act[k]] = x[k], v[k], j[k]
+        live &= ~done
+        pol = polish
+        x_prev, g_prev, x = x, g, np.where(live, xn, x)
+        keep = np.flatnonzero(live)
+        if keep.size and keep.size <= 0.5 * act.size:   # drop the finished candidates
+            act, x, x_prev, g_prev, lo, hi, W, jgen, dx_old, dx, live, pol, kk = (
+                a_[keep] for a_ in (act, x, x_prev, g_prev, lo, hi, W, jgen, dx_old, dx, live, pol, kk))
+            sub, lv = sub.take(keep), lv.take(keep)
+            kinked = bool(np.isfinite(kk).any())
+    return fx, fv, fj
+
+
+def _mpp_candidates(p_scan, xs, found_x, found_p):
+    """Brackets around the local maxima of a coarse scan of P not yet found.
+
+    Parameters
+    ----------
+    p_scan : ndarray (M + 1, n)
+        P at the scan points xs (the last one the steady state, P = 0) [mW/cm^2].
+    xs : ndarray (M + 1, n)
+        Scan points, evenly spaced from the bracket's low end to x_oc [ln cm^-3].
+    found_x, found_p : ndarray (n,)
+        The maximum already found per point: ln Delta n [ln cm^-3] and P [mW/cm^2].
+
+    Returns
+    -------
+    point, lo, hi, start: arrays (C,), point the index into the n points.  A scan maximum
+    is kept where it lies more than one scan step from found_x and its P is within
+    _MPP_KEEP of found_p or above, with the bracket of its two neighbours; the start is the
+    vertex of the parabola through the three scan points (else the scan point).
+    """
+    M1, n = p_scan.shape
+    step_all = xs[1] - xs[0]
+    with np.errstate(invalid="ignore"):
+        is_max = np.isfinite(p_scan)                     # not below either neighbour (the ends: one)
+        is_max[1:] &= p_scan[1:] >= p_scan[:-1]
+        is_max[:-1] &= p_scan[:-1] > p_scan[1:]
+        ref = np.where(np.isfinite(found_p), found_p, -np.inf)
+        keep = is_max & (p_scan >= ref - _MPP_KEEP * np.abs(ref)) & ~(np.abs(xs - found_x) <= step_all)
+    pt, i = np.nonzero(keep.T)                           # ordered by point
+    step = step_all[pt]
+    centre = xs[i, pt]
+    lo = np.maximum(centre - step, xs[0, pt])
+    hi = np.minimum(centre + step, xs[-1, pt])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        im = np.clip(i, 1, M1 - 2)
+        p0, p1, p2 = p_scan[im - 1, pt], p_scan[im, pt], p_scan[im + 1, pt]
+        vertex = xs[im, pt] + 0.5 * step * (p0 - p2) / (p0 - 2.0 * p1 + p2)
+    start = np.where((vertex > lo) & (vertex < hi), vertex, centre)
+    start = np.where((start > lo) & (start < hi), start, 0.5 * (lo + hi))
+    return pt, lo, hi, start
+
+
+#: distance from a kink of P at which its sides are evaluated [ln cm^-3] (> _SHIFT_STEP)
+_KINK_SIDE = 1e-5
+#: an SRH level whose lifetime rises by more than this factor from low to high injection can
+#: give P a second maximum (a shoulder of the J-V); only then is P scanned [-] (see `_srh_rising`)
+_SRH_RISE = 5.0
+
+
+def _srh_rising(prep, shift):
+    """True where an SRH level's lifetime rises with injection by more than _SRH_RISE [-].
+
+    P = V J is concave in V (one maximum) where the recombination current is convex in V,
+    U'' V' >= U' V'' in x = ln Delta n.  With Boltzmann levels and no narrowing
+    V''/V' = 1 - (u^2 + w^2)/(u + w) <= 1 (u = Delta n/n, w = Delta n/p), so it suffices that
+    every mechanism has a (a - 1) + a' >= 0, a = d ln U_i/dx: radiative, Auger and J0
+    surfaces (X = Delta n (gamma + Delta n) times a constant or a power, gamma = n0 + p0) and S
+    surfaces have a >= 1, a' >= 0.  One SRH level,
+    U = (a_n a_p / (a_n + a_p)) X / (delta + Delta n),
+    delta = (a_n (n0 + n1) + a_p (p0 + p1)) / (a_n + a_p) (a_n = 1/tau_n0, a_p = 1/tau_p0), has
+    a (a - 1) + a' = 2 (s - r)(1 - r), s = Delta n/(gamma + Delta n), r = Delta n/(delta + Delta n):
+    >= 0 exactly where delta >= gamma, i.e. where its lifetime does not rise with injection
+    (it rises by gamma / delta from low to high injection).  A rising lifetime can give the
+    J-V a shoulder and P a second maximum: a dense-grid check of that one-level model
+    (Boltzmann levels, any injection and minority density) finds none below gamma/delta ~ 50;
+    P is scanned from a factor 10 below that.  n1, p1 scale by e^(shift/2) with the injection
+    narrowing: delta is taken at the smaller of 1 and e^(shift/2).
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the n points.
+    shift : ndarray (n,) or float
+        The narrowing shift at the steady state [-].
+
+    Returns
+    -------
+    ndarray (n,) of bool.
+    """
+    if not prep.n1.shape[-1]:
+        return np.zeros(len(prep), bool)
+    a, b = prep.srh_a, prep.srh_b
+    m = np.exp(0.5 * np.minimum(np.asarray(shift, dtype=float), 0.0))[..., None]
+    gamma = (prep.n0 + prep.p0)[:, None]
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+        delta = (a * (prep.n0[:, None] + prep.n1 * m) + b * (prep.p0[:, None] + prep.p1 * m)) / (a + b)
+        return np.any((a > 0) & (b > 0) & ~(gamma <= _SRH_RISE * delta), axis=-1)
+
+
+def _narrowing_kink_x(prep):
+    """ln Delta n [ln cm^-3] where the Schenk 1998 ion term's cap switches (NaN where none).
+
+    `optogen.equilibrium.bgn_schenk1998` caps the ion density at the free-carrier density
+    n + p: the narrowing, and so the splitting and P = V J, have a kink where
+    n0 + p0 + 2 Delta n = N_D + N_A (the same point `PreparedRates._shift_integral` splits at).
+    There the narrowing's slope falls, the splitting's rises: P can have a local maximum on
+    each side.
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the n points.
+
+    Returns
+    -------
+    ndarray (n,): ln Delta n of the kink [ln cm^-3], NaN without one.
+    """
+    if not prep.inj_bgn:
+        return np.full(len(prep), np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        k = 0.5 * (prep.nd + prep.na - prep.n0 - prep.p0)
+        return np.where(k > 0, np.log(np.where(k > 0, k, 1.0)), np.nan)
+
+
+def _best(pt, n, fx, fv, fj):
+    """Per point (0..n-1) the candidate with the highest P = V J; NaN where a point has none.
+
+    Parameters
+    ----------
+    pt : ndarray (C,)
+        Point of each candidate [-].
+    n : int
+        Number of points [-].
+    fx, fv, fj : ndarray (C,)
+        ln Delta n [ln cm^-3], V [V], J [mA/cm^2] of each candidate.
+
+    Returns
+    -------
+    x, V, J: arrays (n,).
+    """
+    with np.errstate(invalid="ignore"):
+        fp = fv * fj
+    key = np.where(np.isfinite(fp), fp, -np.inf)
+    top = np.full(n, -np.inf)
+    np.maximum.at(top, pt, key)
+    idx = np.flatnonzero(key == top[pt])[::-1]
+    win = np.full(n, -1)
+    win[pt[idx]] = idx                                   # the first best candidate of each point
+    return tuple(np.where(win >= 0, a_[np.maximum(win, 0)], np.nan) for a_ in (fx, fv, fj))
+
+
+def _other_side_of_kink(prep, levels, W, jgen, voc, lo, x_oc, x, v, j, kink):
+    """Candidates on the far side of a kink of P from the maximum found (x, V, J per point).
+
+    Below the kink every P is at most V(kink-) J_gen, above it at most Voc J(kink+) (V rises,
+    J falls with Delta n): where that bound does not exceed the P found, nothing to do.
+    Elsewhere dP/dx at the side point (kink -+ _KINK_SIDE) says whether that side holds a
+    maximum inside (dP/dx < 0 below, > 0 above: searched from the side point's diode-model
+    step) or at the side point itself (taken as it is).
+
+    Parameters
+    ----------
+    prep, levels : PreparedRates, _Levels
+        The n points.
+    W, jgen, voc, lo, x_oc : ndarray (n,)
+        Thickness [cm], J_gen [mA/cm^2], Voc [V], the bracket [ln cm^-3].
+    x, v, j : ndarray (n,)
+        The maximum found: ln Delta n [ln cm^-3], V [V], J [mA/cm^2].
+    kink : ndarray (n,)
+        `_narrowing_kink_x` [ln cm^-3].
+
+    Returns
+    -------
+    (pt, lo, hi, start) to search, (pt, x, V, J) taken.
+    """
+    none_s = (np.empty(0, int),) + tuple(np.empty(0) for _ in range(3))
+    with np.errstate(invalid="ignore"):
+        ids = np.flatnonzero((kink - _KINK_SIDE > lo) & (kink + _KINK_SIDE < x_oc) & np.isfinite(x)
+                             & (np.abs(kink - x) > _KINK_SIDE))
+    if ids.size == 0:
+        return none_s, none_s
+    below = kink[ids] < x[ids]                           # the other side is below the kink
+    xs = np.where(below, kink[ids] - _KINK_SIDE, kink[ids] + _KINK_SIDE)
+    sub, lv = prep.take(ids), levels.take(ids)
+    no = np.zeros(ids.size, bool)
+    vs, js, _, _, _, _ = _power_point(sub, W[ids], jgen[ids], xs, lv, need=no)
+    p_found = v[ids] * j[ids]
+    with np.errstate(invalid="ignore"):
+        bound = np.where(below, vs * jgen[ids], voc[ids] * js)
+        go = np.flatnonzero(bound > p_found)
+    if go.size == 0:
+        return none_s, none_s
+    ids, below, xs = ids[go], below[go], xs[go]
+    v2, j2, dv2, dj2, _, _ = _power_point(sub.take(go), W[ids], jgen[ids], xs, lv.take(go))
+    with np.errstate(invalid="ignore", over="ignore"):
+        g = dv2 * j2 + v2 * dj2
+        inner = np.where(below, g < 0, g > 0)             # a maximum inside that side
+        lo2 = np.where(below, lo[ids], xs)
+        hi2 = np.where(below, xs, x_oc[ids])
+        t = xs + _diode_model_step(v2, j2, dv2, dj2, jgen[ids])
+        start = np.where((t > lo2) & (t < hi2), t, 0.5 * (lo2 + hi2))
+    s_, t_ = np.flatnonzero(inner), np.flatnonzero(~inner)
+    return (ids[s_], lo2[s_], hi2[s_], start[s_]), (ids[t_], xs[t_], v2[t_], j2[t_])
+
+
+def _mpp_flat(prep, W, jgen, voc, dn_oc, shift_oc=None):
     """Maximum-power point (vmp [V], jmp [mA/cm^2]) on the implied J-V, parametrised by Delta n.
 
     Each Delta n is an operating point with V = the splitting (the definition of `_state_flat`)
-    and J = J_gen - q W U(Delta n); the power V J is maximised by golden section on
-    x = ln Delta n over [ln dn_oc - L, ln dn_oc], L = 4 (ln(1 + Voc/kT) + 1), which holds the
-    maximum for every diode ideality above 1/3 (Voc - Vmp ~ m kT (ln(1 + Voc/(m kT)) + 1)).
+    and J = J_gen - q W U(Delta n); the power P = V J is maximised over x = ln Delta n in
+    [x_oc - L, x_oc], L = 4 (ln(1 + Voc/kT) + 1), which holds the maximum for every diode
+    ideality above 1/3 (Voc - Vmp ~ m kT (ln(1 + Voc/(m kT)) + 1)):
+
+    1. At the steady state x_oc (J = 0, V = Voc) the analytic slopes (`_power_point`) give
+       whether the splitting falls there (`splitting_falls`: vmp, jmp NaN) and a start, the
+       maximum of the local diode model (`_diode_model_step`).
+    2. `_mpp_newton` from there on the whole bracket.  Where an SRH level's lifetime rises
+       strongly with injection (`_srh_rising`) P can have a second maximum (a shoulder of the
+       J-V): there a coarse scan of P (`_scan_power`, no narrowing evaluation) finds the local
+       maxima, and each one away from the maximum found, within _MPP_KEEP of it or above, is
+       refined too (`_mpp_candidates`).
+    3. With the Schenk narrowing, whose ion-density cap gives P a kink (`_narrowing_kink_x`),
+       the far side of the kink from the maximum found is searched too unless a bound rules
+       it out (`_other_side_of_kink`).  The highest P wins.
     Parametrised by Delta n the curve passes exactly through (Voc, 0) at the steady state
-    dn_oc [cm^-3], also where a strong injection narrowing makes the splitting fall with
-    Delta n (Si below ~20 K with schenk1998), so that V -> J is not single-valued.
+    dn_oc, also where a strong injection narrowing makes the splitting fall with Delta n
+    (Si below ~20 K with schenk1998), so that V -> J is not single-valued: there vmp and jmp
+    are NaN, as where dn_oc is not positive.  V at the maximum uses the series levels of
+    `_fast_levels` (within 1e-12 kT of the exact ones).
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points.
+    W : float or ndarray (P,)
+        Thickness [cm].
+    jgen : ndarray (P,)
+        Photocurrent J_gen [mA/cm^2].
+    voc : ndarray (P,)
+        Implied Voc, the steady-state splitting [V].
+    dn_oc : ndarray (P,)
+        Steady-state Delta n at J_gen / (q W) [cm^-3].
+    shift_oc : ndarray (P,) or float, optional
+        The narrowing shift at dn_oc (`PreparedRates.ni2_shift`) if already known [-]: the
+        solve's, so that the narrowing is not evaluated there again.
+
+    Returns
+    -------
+    vmp [V], jmp [mA/cm^2]: arrays (P,).
     """
-    gr = (np.sqrt(5.0) - 1.0) / 2.0
+    P = len(prep)
+    Wf = np.broadcast_to(np.asarray(W, dtype=float), (P,))
+    jgen = np.broadcast_to(np.asarray(jgen, dtype=float), (P,))
+    voc = np.broadcast_to(np.asarray(voc, dtype=float), (P,))
+    vmp, jmp = np.full(P, np.nan), np.full(P, np.nan)
     with np.errstate(divide="ignore", invalid="ignore"):
         x_oc = np.log(dn_oc)
-        hi = x_oc
-        lo = hi - 4.0 * (np.log1p(np.maximum(voc / prep.kT, 0.0)) + 1.0)
+    ids = np.flatnonzero((dn_oc > 0) & np.isfinite(x_oc))
+    if ids.size == 0:
+        return vmp, jmp
+    cur = prep.take(ids) if ids.size < P else prep
+    levels = _fast_levels(cur)
+    xo, jg, cw, vo = x_oc[ids], jgen[ids], Wf[ids], voc[ids]
+    so = None if shift_oc is None or not cur.inj_bgn else np.broadcast_to(shift_oc, (P,))[ids]
+    # 1. the steady state: slopes, `splitting_falls`, the start
+    _, j_o, dv_o, dj_o, s_o, ds_o = _power_point(cur, cw, jg, xo, levels, so)
+    if cur.inj_bgn:
+        rise = np.flatnonzero(~(dv_o < 0))
+        if rise.size < ids.size:
+            ids, xo, jg, cw, vo, j_o, dv_o, dj_o, s_o, ds_o = (
+                a_[rise] for a_ in (ids, xo, jg, cw, vo, j_o, dv_o, dj_o, s_o, ds_o))
+            cur, levels = cur.take(rise), levels.take(rise)
+        if ids.size == 0:
+            return vmp, jmp
+    n = ids.size
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+        lo = xo - 4.0 * (np.log1p(np.maximum(vo / cur.kT, 0.0)) + 1.0)
+        x_start = xo + _diode_model_step(vo, j_o, dv_o, dj_o, jg)
+        x_start = np.where((x_start > lo) & (x_start < xo), x_start, 0.5 * (lo + xo))
+    # 2. Newton from the steady state's side over the whole bracket
+    kink = _narrowing_kink_x(cur)
+    fx, fv, fj = _mpp_newton(cur, levels, cw, jg, x_start, lo, xo.copy(), kink)
+    # where an SRH lifetime rises strongly, a scan for a higher maximum elsewhere
+    scan = np.flatnonzero(_srh_rising(cur, s_o if cur.inj_bgn else 0.0))
+    if scan.size:
+        ssub, slv = (cur.take(scan), levels.take(scan)) if scan.size < n else (cur, levels)
+        p_scan, xs = _scan_power(ssub, slv, cw[scan], jg[scan], lo[scan], xo[scan], j_o[scan], vo[scan],
+                                 s_o[scan] if cur.inj_bgn else None, ds_o[scan] if cur.inj_bgn else None)
+        with np.errstate(invalid="ignore"):
+            spt, slo, shi, sx = _mpp_candidates(p_scan, xs, fx[scan], fv[scan] * fj[scan])
+        if spt.size:
+            kp = scan[spt]
+            gx, gv, gj = _mpp_newton(cur.take(kp), levels.take(kp), cw[kp], jg[kp], sx, slo, shi, kink[kp])
+            pt = np.concatenate([np.arange(n), kp])
+            fx, fv, fj = _best(pt, n, *(np.concatenate(z) for z in zip((fx, fv, fj), (gx, gv, gj))))
+    # 3. the other side of a kink of the narrowing
+    if cur.inj_bgn:
+        (kp, klo, khi, kx), taken = _other_side_of_kink(cur, levels, cw, jg, vo, lo, xo, fx, fv, fj, kink)
+        if kp.size or taken[0].size:
+            gx, gv, gj = _mpp_newton(cur.take(kp), levels.take(kp), cw[kp], jg[kp], kx, klo, khi) \
+                if kp.size else (np.empty(0),) * 3
+            pt = np.concatenate([np.arange(n), kp, taken[0]])
+            fx, fv, fj = _best(pt, n, *(np.concatenate(z) for z in zip((fx, fv, fj), (gx, gv, gj), taken[1:])))
+    ok = np.isfinite(fx)
+    vmp[ids[ok]], jmp[ids[ok]] = fv[ok], fj[ok]
+    return vmp, jmp
 
-    levels = _fast_levels(prep)
 
-    def power(x):
-        v, j = _operating_point(prep, W, jgen, x, levels)
-        return v * j
-    with np.errstate(invalid="ignore"):     # dn_oc = 0 (no splitting): NaN, not a point of a J-V
-        c, d = hi - gr * (hi - lo), lo + gr * (hi - lo)
-        pc, pd = power(c), power(d)
-        for _ in range(iters):
-            left = pc > pd                      # maximum in [lo, d]
-            hi, lo = np.where(left, d, hi), np.where(left, lo, c)
-            c, d = np.where(left, hi - gr * (hi - lo), d), np.where(left, c, lo + gr * (hi - lo))
-            pn = power(np.where(left, c, d))
-            pc, pd = np.where(left, pn, pd), np.where(left, pc, pn)
-        vmp, jmp = _operating_point(prep, W, jgen, 0.5 * (lo + hi))
-    bad = splitting_falls(prep, x_oc, levels) | ~(dn_oc > 0)
-    return np.where(bad, np.nan, vmp), np.where(bad, np.nan, jmp)
+def _scan_power(prep, levels, W, jgen, lo, x_oc, j_oc, voc, s_oc, ds_oc):
+    """P = V J at _MPP_SCAN + 1 evenly spaced x = ln Delta n from lo to x_oc, without the narrowing.
 
+    The injection narrowing's shift is modelled from its value and slope at x_oc as
+    s_oc e^(kappa (x - x_oc)), kappa = d ln s/dx at x_oc clipped to [0, 1] (e^x: the linear
+    low-injection limit); P at x_oc is Voc J(x_oc).  Only used to find the local maxima.
 
-#: relative step in Delta n for the slope of the splitting at the steady state [-]
-_SLOPE_STEP = 1e-4
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the n points.
+    levels : _Levels
+        Their levels.
+    W, jgen : ndarray (n,)
+        Thickness [cm] and photocurrent [mA/cm^2].
+    lo, x_oc : ndarray (n,)
+        The bracket [ln cm^-3].
+    j_oc, voc : ndarray (n,)
+        J [mA/cm^2] and V [V] at x_oc.
+    s_oc, ds_oc : ndarray (n,) or None
+        The shift and its slope at x_oc [-] (None without injection narrowing).
+
+    Returns
+    -------
+    p_scan [mW/cm^2], xs [ln cm^-3]: arrays (_MPP_SCAN + 1, n).
+    """
+    xs = lo + (x_oc - lo) * (np.arange(_MPP_SCAN + 1)[:, None] / _MPP_SCAN)
+    p_scan = np.empty(xs.shape)
+    c = q_C * W * 1e3
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+        kappa = None if s_oc is None else np.clip(
+            np.where(s_oc != 0, ds_oc / np.where(s_oc != 0, s_oc, 1.0), 0.0), 0.0, 1.0)
+        for i in range(_MPP_SCAN):
+            x = xs[i]
+            d = np.exp(x)
+            s = 0.0 if s_oc is None else s_oc * np.exp(kappa * (x - x_oc))
+            p_scan[i] = prep.kT * (levels(x, d) - s) * (jgen - c * sum(prep.rates(d, s)))
+        p_scan[-1] = voc * j_oc
+    return p_scan, xs
 
 
 def splitting_falls(prep, x_oc, levels=None):
@@ -523,17 +1238,30 @@ def splitting_falls(prep, x_oc, levels=None):
     T. M. Rice, Solid State Phys. 32, 1 (1977), from memory).  It happens where an
     injection-dependent narrowing (schenk1998 at low temperature) outgrows the carriers'
     kinetic term.  There V -> J is not single-valued and the implied FF, Vmp, Jmp do not apply.
-    Tested by the difference over a step of _SLOPE_STEP in ln Delta n.
+
+    Parameters
+    ----------
+    prep : PreparedRates
+        Per-point constants of the P points.
+    x_oc : ndarray (P,)
+        ln Delta n at the steady state [ln cm^-3].
+    levels : callable, optional
+        From `_fast_levels(prep)`.
+
+    Returns
+    -------
+    ndarray (P,) of bool: the slope d(eta_n + eta_p)/dx - d shift/dx < 0, the levels' slope
+    analytic and the narrowing's from `_shift_slope` (the test `_mpp_flat` applies).
     """
     x_oc = np.asarray(x_oc, dtype=float)
     if not prep.inj_bgn:
         return np.zeros(x_oc.shape, bool)     # without injection narrowing the levels only rise
-    with np.errstate(invalid="ignore"):
-        lo, hi = x_oc - _SLOPE_STEP, x_oc + _SLOPE_STEP
-        zero = np.zeros_like(x_oc)
-        v_lo = _operating_point(prep, 1.0, zero, lo, levels)[0]
-        v_hi = _operating_point(prep, 1.0, zero, hi, levels)[0]
-        return np.isfinite(x_oc) & (v_hi < v_lo)
+    levels = _fast_levels(prep) if levels is None else levels
+    with np.errstate(over="ignore", invalid="ignore", under="ignore"):
+        d = np.exp(x_oc)
+        shift = prep.ni2_shift(d, precise=False)
+        _, deta = levels(x_oc, d, slope=True)
+        return np.isfinite(x_oc) & (deta - _shift_slope(prep, d, shift) < 0)
 
 
 # ---------------------------------------------------------------------------
@@ -650,9 +1378,8 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
         prep = recombination.prepare(material, eq, thickness_cm, shape, idx)
         g = Gb[np.unravel_index(idx, shape)] if Gb.ndim else np.full(idx.size, float(Gb))
         dn, conv = _solve_flat(prep, g)
-        st = _state_flat(prep, dn)
+        st, shift, u = _state_flat(prep, dn, extras=True)       # the narrowing at dn evaluated once
         with np.errstate(invalid="ignore", divide="ignore"):
-            u = prep.total(dn)
             st["residual"] = np.where(g > 0, np.abs(g - u) / np.where(g > 0, g, 1.0), 0.0)
         st["converged"] = conv
         st["generation_cm3_s"] = g
@@ -660,11 +1387,12 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
         if with_ff:
             lit = np.flatnonzero((g > 0) & conv & (dn > 0) & (st["splitting_eV"] > 0))
             if lit.size:
-                sub = prep.take(lit)
+                sub = prep.take(lit) if lit.size < idx.size else prep
                 W = _thickness_flat(thickness_cm, shape, idx[lit])
                 jgen = q_C * W * g[lit] * 1e3
                 voc = st["splitting_eV"][lit]          # implied Voc = the splitting (one definition)
-                vmp, jmp = _mpp_flat(sub, W, jgen, voc, dn_oc=dn[lit])
+                vmp, jmp = _mpp_flat(sub, W, jgen, voc, dn_oc=dn[lit],
+                                     shift_oc=shift[lit] if np.ndim(shift) else shift)
                 with np.errstate(invalid="ignore", divide="ignore"):
                     ff = vmp * jmp / (voc * jgen)
                 st["implied_ff"][lit] = np.where(voc > 0, ff, np.nan)
@@ -753,26 +1481,55 @@ class ImpliedJV:
 
 
 def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocurrent_mA_cm2,
-               voltages_V=None, irradiance_W_m2=None, points: int = 101) -> ImpliedJV:
+               voltages_V=None, irradiance_W_m2=None, points: int = 101, *,
+               state: SteadyState | None = None) -> ImpliedJV:
     """Implied J-V: J(V) = J_gen - q W U(Delta n(V)), Delta n(V) the excess density with splitting V.
 
-    material; eq: `Equilibrium`; recombination; thickness_cm: W [cm];
-    photocurrent_mA_cm2: J_gen > 0, broadcasting with eq [mA/cm^2];
-    voltages_V: voltage grid (M,) [V] (default: `points` values from 0 to Voc per point);
-    irradiance_W_m2: incident irradiance for the efficiency [W m^-2]; points: grid size [-].
     V is the quasi-Fermi-level splitting of `solve` (Fermi-Dirac or Boltzmann, as the narrowing
     model's statistics), so Voc_V is exactly the steady-state splitting_eV under
-    G = J_gen / (q W) and the curve ends at (Voc, 0).  The maximum-power point by golden
-    section over Delta n (`_mpp_flat`); vmp, jmp, pmax, ff, efficiency are NaN where the
-    splitting falls as Delta n rises at the steady state (`splitting_falls`: an unstable
-    uniform plasma, V -> J not single-valued); efficiency is also NaN where P_max would exceed
-    the incident power (a splitting above the photon energy: population inversion).
+    G = J_gen / (q W) and the curve ends at (Voc, 0).  The maximum-power point by a
+    safeguarded Newton iteration over Delta n (`_mpp_flat`); vmp, jmp, pmax, ff, efficiency
+    are NaN where the splitting falls as Delta n rises at the steady state (`splitting_falls`:
+    an unstable uniform plasma, V -> J not single-valued); efficiency is also NaN where P_max
+    would exceed the incident power (a splitting above the photon energy: population inversion).
+
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    eq : Equilibrium
+        Its dark state (arrays).
+    recombination : Recombination
+        The mechanisms.
+    thickness_cm : float or array_like
+        W [cm].
+    photocurrent_mA_cm2 : float or array_like
+        J_gen > 0, broadcasting with eq [mA/cm^2].
+    voltages_V : array_like (M,), optional
+        Voltage grid [V] (default: `points` values from 0 to Voc per point).
+    irradiance_W_m2 : float or array_like, optional
+        Incident irradiance for the efficiency [W m^-2].
+    points : int
+        Grid size of the default voltage grid [-].
+    state : SteadyState, optional
+        The steady state of these same inputs at G = J_gen / (q W) (from `solve`), when the
+        caller already has it: it is then not solved again.  Its shape must be the broadcast
+        shape of eq, J_gen and W and its generation_cm3_s G to 1e-9 relative; default: solved here.
+
+    Returns
+    -------
+    ImpliedJV
+        voltage_V, current_mA_cm2 (..., M) [V], [mA/cm^2]; jsc_mA_cm2, voc_V, vmp_V, jmp_mA_cm2,
+        pmax_mW_cm2, ff, efficiency [mA/cm^2, V, V, mA/cm^2, mW/cm^2, -, -].
     """
     jg = np.asarray(photocurrent_mA_cm2, dtype=float)
     check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA/cm^2")
     check_range("absorber.thickness_um", thickness_cm, 0.0, None, low_open=True)
     G = jg * 1e-3 / (q_C * np.asarray(thickness_cm, dtype=float))
-    ss = solve(material, eq, recombination, G, thickness_cm, with_ff=False)
+    if state is None:
+        ss = solve(material, eq, recombination, G, thickness_cm, with_ff=False)
+    else:
+        ss = _check_state(state, _shape(eq, G, thickness_cm), G)
     shape = np.shape(ss.delta_n_cm3)
     size = int(np.prod(shape))
     prep = recombination.prepare(material, eq, thickness_cm, shape)
@@ -817,6 +1574,38 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     return ImpliedJV(np.moveaxis(grid.reshape((M,) + shape), 0, -1), np.moveaxis(cur.reshape((M,) + shape), 0, -1),
                      sh(jgen), sh(voc), sh(vmp), sh(jmp), sh(pmax), sh(ff),
                      None if eff is None else sh(eff))
+
+
+def _check_state(state, shape, G):
+    """The `SteadyState` given to `implied_jv`, checked to be the one of its inputs.
+
+    Parameters
+    ----------
+    state : SteadyState
+        From `solve` [-].
+    shape : tuple
+        The broadcast shape of the inputs [-].
+    G : ndarray
+        J_gen / (q W) [cm^-3 s^-1].
+
+    Returns
+    -------
+    SteadyState: state itself.
+    """
+    if not isinstance(state, SteadyState):
+        raise InputError("state", type(state).__name__, "a SteadyState from optogen.steady_state.solve")
+    if np.shape(state.delta_n_cm3) != tuple(shape):
+        raise InputError("state", f"shape {np.shape(state.delta_n_cm3)}",
+                         f"the steady state of these inputs, shape {tuple(shape)}")
+    g = np.broadcast_to(G, shape)
+    with np.errstate(invalid="ignore"):
+        same = np.abs(np.asarray(state.generation_cm3_s, dtype=float) - g) <= 1e-9 * np.abs(g)
+    if not np.all(same):
+        bad = np.asarray(state.generation_cm3_s, dtype=float)[~same].flat[0]
+        raise InputError("state.generation_cm3_s", float(bad),
+                         "the generation of these inputs, J_gen / (q W), to 1e-9 relative",
+                         "solve the steady state at G = photocurrent_mA_cm2 * 1e-3 / (q W)")
+    return state
 
 
 @dataclass(frozen=True, eq=False)

@@ -534,7 +534,9 @@ def point_details(setup: Setup, details, blocks) -> dict[str, Any]:
         jph += q_C * setup.thickness_cm * g_bg * 1e3
         irr = 0.0
     if jph > 0 and bool(np.all(details["steady_state"].converged)):
-        jv = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph, irradiance_W_m2=irr if irr > 0 else None)
+        # the steady state already solved for this point is the J-V's open-circuit point: not solved again
+        jv = implied_jv(setup.material, eq, rec, setup.thickness_cm, jph, irradiance_W_m2=irr if irr > 0 else None,
+                        state=details["steady_state"])
         if not bool(np.all(np.isfinite(np.asarray(jv.ff)))) and bool(np.all(np.asarray(jv.voc_V) > 0)):
             out["warnings"] = list(details.get("warnings", ())) + [_FALLING_SPLITTING_NOTE.format(
                 what="the implied FF, maximum-power point and efficiency are null")]

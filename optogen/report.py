@@ -24,7 +24,13 @@ from .errors import InputError
 
 
 def file_mode() -> int:
-    """The permission bits a new file gets under the current umask (0o666 & ~umask)."""
+    """The permission bits a new file gets under the current umask.
+
+    Returns
+    -------
+    int
+        0o666 & ~umask [-].
+    """
     mask = os.umask(0)
     os.umask(mask)
     return 0o666 & ~mask
@@ -42,6 +48,16 @@ def atomic_path(final: Path):
     The renamed file gets the permissions of a plainly created file (0o666 minus the
     umask; the temporary file itself is private while it is written).  An OSError of the
     folder (missing, read-only, full) is raised as InputError naming it.
+
+    Parameters
+    ----------
+    final : str or Path
+        The file to write [-].
+
+    Yields
+    ------
+    Path
+        The temporary file to write to.
     """
     final = Path(final)
     try:
@@ -63,12 +79,40 @@ def atomic_path(final: Path):
 
 
 def write_text(path: Path, text: str) -> Path:
+    """Write UTF-8 text atomically (`atomic_path`).
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write [-].
+    text : str
+        Its contents [-].
+
+    Returns
+    -------
+    Path
+        The path written.
+    """
     with atomic_path(path) as tmp:
         tmp.write_text(text, encoding="utf-8")
     return Path(path)
 
 
 def write_json(path: Path, data) -> Path:
+    """Write JSON (indented, NaN refused) atomically.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write [-].
+    data : object
+        JSON-serialisable data [-].
+
+    Returns
+    -------
+    Path
+        The path written.
+    """
     return write_text(path, json.dumps(data, indent=2, allow_nan=False) + "\n")
 
 
@@ -79,7 +123,24 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
     type, ``flag_meanings``; xarray's ``dtype = "bool"`` marker reads them back as booleans);
     strings as variable-length strings without units; numbers zlib-compressed with a NaN
     fill value; coordinates without a fill value (CF 2.5.1).
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        The result Dataset.
+
+    Returns
+    -------
+    ready : xarray.Dataset
+        The CF-encoded copy.
+    encoding : dict
+        Variable name -> encoding for `to_netcdf` [-].
+
+    References
+    ----------
+    NetCDF Climate and Forecast (CF) Metadata Conventions, version 1.10, sections 2.5.1 and 3.5.
     """
+    from .pipeline.result import ZLIB_LEVEL
     out = ds.copy()
     encoding: dict[str, dict] = {}
     for name, var in out.variables.items():
@@ -99,7 +160,7 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
             out[name].attrs.pop("units", None)
             encoding.setdefault(name, {}).update(dtype=str)
         elif kind == "f" and name not in out.coords and var.ndim:
-            encoding.setdefault(name, {}).update(zlib=True, complevel=4, shuffle=True)
+            encoding.setdefault(name, {}).update(zlib=True, complevel=ZLIB_LEVEL, shuffle=True)
     return out, encoding
 
 
@@ -109,6 +170,18 @@ def write_netcdf(path: Path, ds: xr.Dataset) -> Path:
     A Dataset already on disk as a chunked store (`optogen.pipeline.result.ChunkStore`, a
     large sweep) is copied block by block, never loaded whole; its global attributes and any
     variable added after the run are written into the copy.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write (atomically) [-].
+    ds : xarray.Dataset
+        The result Dataset.
+
+    Returns
+    -------
+    Path
+        The path written.
     """
     source = ds.encoding.get("source")
     if source and ds.attrs.get("optogen_storage") and Path(source).is_file():
@@ -152,17 +225,22 @@ JSON_MAX_POINTS = 10_000
 
 
 def write_csv(path: Path, ds: xr.Dataset) -> Path:
-    """Tidy CSV: one row per grid point, one column per swept key (underscore name) then per
-    quantity (unit in the name); NaN as an empty cell.
+    """Tidy CSV: one row per grid point, one column per swept key, then one per quantity.
+
+    Swept keys by their underscore name, quantities with the unit in the name; NaN as an
+    empty cell.
 
     Parameters
     ----------
-    path : the file to write (atomically)
-    ds : the result Dataset
+    path : str or Path
+        The file to write (atomically) [-].
+    ds : xarray.Dataset
+        The result Dataset.
 
     Returns
     -------
-    The path written.
+    Path
+        The path written.
 
     Notes
     -----
@@ -175,22 +253,40 @@ def write_csv(path: Path, ds: xr.Dataset) -> Path:
 
 
 def write_table(path: Path, columns: dict[str, np.ndarray]) -> Path:
-    """A CSV of equal-length columns (curves: J-V, lifetime, profile); see `write_columns`."""
+    """A CSV of equal-length columns (curves: J-V, lifetime, profile); see `write_columns`.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file to write (atomically) [-].
+    columns : dict of str to ndarray
+        Column name (unit in the name) -> 1-D array [unit in the name].
+
+    Returns
+    -------
+    Path
+        The path written.
+    """
     return write_columns(path, columns)
 
 
 def write_columns(path: Path, columns: dict[str, np.ndarray]) -> Path:
     """Write equal-length 1-D columns as a CSV with a header row, atomically.
 
+    Numbers are written in their shortest form that reads back to the same double; NaN (and
+    None) as an empty cell; booleans as true/false.
+
     Parameters
     ----------
-    path : the file to write
-    columns : column name -> 1-D array (numbers, booleans or strings)
+    path : str or Path
+        The file to write [-].
+    columns : dict of str to array_like
+        Column name -> 1-D array (numbers, booleans or strings) [unit in the name].
 
     Returns
     -------
-    The path written.  Numbers are written in their shortest form that reads back to the same
-    double; NaN (and None) as an empty cell; booleans as true/false.
+    Path
+        The path written.
     """
     import pyarrow as pa
     import pyarrow.csv as pacsv
@@ -224,9 +320,22 @@ CAUTION_IRRADIANCE_W_m2 = 2000.0
 
 
 def cautions(res) -> list[str]:
-    """The safety notes that apply to a result: always the estimate note; the light note for a
-    laser or LED source or any point above 2 suns of incident light (whatever sets the level);
-    the cryogenic note below 200 K."""
+    """The safety notes that apply to a result.
+
+    Always the estimate note; the light note for a laser or LED source or any point above
+    2 suns of incident light (whatever sets the level); the cryogenic note below 200 K; the
+    tunnelling and high-field notes where the detector flags them.
+
+    Parameters
+    ----------
+    res : optogen.pipeline.result.Result
+        A run's result.
+
+    Returns
+    -------
+    list of str
+        The notes [-].
+    """
     sc, ds = res.scenario, res.dataset
     out = [CAUTION_ESTIMATE]
     src = str((sc.data.get("light") or {}).get("source", "")).lower()
@@ -243,7 +352,8 @@ def cautions(res) -> list[str]:
     return out
 
 
-def _f(v, fmt=".4g", unit=""):
+def _num(v, fmt=".4g", unit=""):
+    """A number as text for the summary ("-" for None or non-finite, yes/no for a bool)."""
     if v is None or (isinstance(v, float) and not np.isfinite(v)):
         return "-"
     if isinstance(v, (bool, np.bool_)):
@@ -254,7 +364,18 @@ def _f(v, fmt=".4g", unit=""):
 
 
 def summary(res) -> str:
-    """A readable summary: dark and illuminated states side by side."""
+    """A readable summary: dark and illuminated states side by side.
+
+    Parameters
+    ----------
+    res : optogen.pipeline.result.Result
+        A run's result.
+
+    Returns
+    -------
+    str
+        The summary text, units in the caret spelling [-].
+    """
     sc = res.scenario
     from ._version import __version__
     lines = [f"optogen {__version__}: {sc.title}"]
@@ -288,7 +409,7 @@ def _point_summary(d) -> list[str]:
     out = [""]
     rows = [("", "dark", "illuminated")]
     def row(label, dark, light, fmt=".4g"):
-        rows.append((label, _f(dark, fmt), _f(light, fmt)))
+        rows.append((label, _num(dark, fmt), _num(light, fmt)))
     row("n (cm^-3)", eq["n0_cm3"], ss and ss["n_cm3"])
     row("p (cm^-3)", eq["p0_cm3"], ss and ss["p_cm3"])
     row("n*p / n_i,eff^2", 1.0 if eq["n0_cm3"] else None, ss and ss["np_over_ni2"])
@@ -298,40 +419,40 @@ def _point_summary(d) -> list[str]:
     for r in rows:
         out.append(f"  {r[0]:<{w0}}  {r[1]:>14}  {r[2]:>14}")
     out.append("")
-    out.append(f"  n_i = {_f(eq['ni_cm3'])} cm^-3, n_i,eff = {_f(eq['ni_eff_cm3'])} cm^-3, "
-               f"Eg = {_f(eq['bandgap_eV'], '.4f')} eV, ionised N_D+ = {_f(eq['ionised_donors_cm3'])}, "
-               f"N_A- = {_f(eq['ionised_acceptors_cm3'])} cm^-3")
+    out.append(f"  n_i = {_num(eq['ni_cm3'])} cm^-3, n_i,eff = {_num(eq['ni_eff_cm3'])} cm^-3, "
+               f"Eg = {_num(eq['bandgap_eV'], '.4f')} eV, ionised N_D+ = {_num(eq['ionised_donors_cm3'])}, "
+               f"N_A- = {_num(eq['ionised_acceptors_cm3'])} cm^-3")
     if "light" in d:
         li, g = d["light"], d["generation"]
-        out.append(f"  light: {_f(li['irradiance_W_m2'])} W m^-2, photon flux {_f(li['photon_flux_cm2_s'])} cm^-2 s^-1; "
-                   f"G = {_f(g['average_cm3_s'])} cm^-3 s^-1, J_gen = {_f(g['photocurrent_mA_cm2'])} mA cm^-2, "
-                   f"absorbed {_f(g['absorbed_fraction'], '.3f')}")
+        out.append(f"  light: {_num(li['irradiance_W_m2'])} W m^-2, photon flux {_num(li['photon_flux_cm2_s'])} cm^-2 s^-1; "
+                   f"G = {_num(g['average_cm3_s'])} cm^-3 s^-1, J_gen = {_num(g['photocurrent_mA_cm2'])} mA cm^-2, "
+                   f"absorbed {_num(g['absorbed_fraction'], '.3f')}")
     if g_bg := (d.get("generation") or {}).get("background_average_cm3_s"):
-        out.append(f"  background: G = {_f(g_bg)} cm^-3 s^-1")
+        out.append(f"  background: G = {_num(g_bg)} cm^-3 s^-1")
     if ss:
         t = ss["tau_s"]
-        out.append(f"  delta n = {_f(ss['delta_n_cm3'])} cm^-3 (injection ratio {_f(ss['injection_ratio'], '.3g')}), "
-                   f"splitting = {_f(ss['splitting_eV'], '.4f')} eV")
-        out.append(f"  implied Voc = {_f(ss['implied_voc_V'], '.4f')} V, implied FF = {_f(ss['implied_ff'], '.4f')}")
-        out.append(f"  lifetime: tau_eff = {_f(ss['tau_eff_s'], '.4g')} s; SRH {_f(t['srh'], '.3g')} s, "
-                   f"radiative {_f(t['radiative'], '.3g')} s, Auger {_f(t['auger'], '.3g')} s, "
-                   f"surface {_f(t['surface'], '.3g')} s")
+        out.append(f"  delta n = {_num(ss['delta_n_cm3'])} cm^-3 (injection ratio {_num(ss['injection_ratio'], '.3g')}), "
+                   f"splitting = {_num(ss['splitting_eV'], '.4f')} eV")
+        out.append(f"  implied Voc = {_num(ss['implied_voc_V'], '.4f')} V, implied FF = {_num(ss['implied_ff'], '.4f')}")
+        out.append(f"  lifetime: tau_eff = {_num(ss['tau_eff_s'], '.4g')} s; SRH {_num(t['srh'], '.3g')} s, "
+                   f"radiative {_num(t['radiative'], '.3g')} s, Auger {_num(t['auger'], '.3g')} s, "
+                   f"surface {_num(t['surface'], '.3g')} s")
         if ss.get("limiting_mechanism"):
             out.append(f"  limited by: {ss['limiting_mechanism']}")
         if ss.get("photoconductance_S") is not None:
-            out.append(f"  photoconductance = {_f(ss['photoconductance_S'], '.4g')} S")
+            out.append(f"  photoconductance = {_num(ss['photoconductance_S'], '.4g')} S")
     if "implied_jv" in d:
         jv = d["implied_jv"]
-        out.append(f"  implied J-V: Vmp = {_f(jv['vmp_V'], '.4f')} V, Jmp = {_f(jv['jmp_mA_cm2'], '.4g')} mA cm^-2, "
-                   f"implied efficiency = {_f(jv['efficiency'], '.4f')}")
+        out.append(f"  implied J-V: Vmp = {_num(jv['vmp_V'], '.4f')} V, Jmp = {_num(jv['jmp_mA_cm2'], '.4g')} mA cm^-2, "
+                   f"implied efficiency = {_num(jv['efficiency'], '.4f')}")
     if "profile" in d:
         pr = d["profile"]
         out.append("")
         out.append(f"  depth-resolved ({pr['plane']} plane for the levels above): delta n front "
-                   f"{_f(pr['front_delta_n_cm3'])}, rear {_f(pr['rear_delta_n_cm3'])}, average "
-                   f"{_f(pr['average_delta_n_cm3'])} cm^-3, min/max {_f(pr['uniformity'], '.3f')}")
-        out.append(f"  uniform approximation error: implied Voc {_f(pr['uniform_error_implied_voc_mV'], '+.2f')} mV, "
-                   f"average delta n {_f(100 * pr['uniform_error_average_delta_n'], '+.1f')} %")
+                   f"{_num(pr['front_delta_n_cm3'])}, rear {_num(pr['rear_delta_n_cm3'])}, average "
+                   f"{_num(pr['average_delta_n_cm3'])} cm^-3, min/max {_num(pr['uniformity'], '.3f')}")
+        out.append(f"  uniform approximation error: implied Voc {_num(pr['uniform_error_implied_voc_mV'], '+.2f')} mV, "
+                   f"average delta n {_num(100 * pr['uniform_error_average_delta_n'], '+.1f')} %")
     if "detector" in d:
         out += _detector_summary(d["detector"])
     return out
@@ -361,16 +482,16 @@ def _detector_summary(det) -> list[str]:
     from .plots import axis_label
     shown = {"mode"}
     for title, items in _DETECTOR_HEADLINE:
-        parts = [f"{label} {_f(det[key])}" for label, key in items if key in det]
+        parts = [f"{label} {_num(det[key])}" for label, key in items if key in det]
         shown.update(key for _, key in items)
         if parts:
             out.append(f"    {title + ':':<28} " + ", ".join(parts))
-    out.append(f"    {'background-limited:':<28} {_f(det.get('background_limited'))} "
+    out.append(f"    {'background-limited:':<28} {_num(det.get('background_limited'))} "
                "(background photon noise above all other noise together)")
     shown.add("background_limited")
     for k, v in det.items():
         if k not in shown:
-                    out.append(f"    {axis_label(k):<42} {_f(v)}")
+                    out.append(f"    {axis_label(k):<42} {_num(v)}")
     return out
 
 
@@ -427,7 +548,7 @@ def _point_table(ds, names, title, units="densities cm^-3, rates cm^-3 s^-1") ->
     if not names:
         return []
     head = [ds[dim].attrs.get("scenario_key", dim)] + [_SHORT.get(n, n) for n in names]
-    rows = [[_f(float(ds[dim].values[i]))] + [_f(ds[n].values[i].item()) for n in names]
+    rows = [[_num(float(ds[dim].values[i]))] + [_num(ds[n].values[i].item()) for n in names]
             for i in range(ds.sizes[dim])]
     w = [max(len(r[j]) for r in rows + [head]) for j in range(len(head))]
     out = ["", f"  {title} ({units}):"]
@@ -440,11 +561,23 @@ def _point_table(ds, names, title, units="densities cm^-3, rates cm^-3 s^-1") ->
 # ---------------------------------------------------------------------------
 
 def write_all(res, outdir: Path) -> list[Path]:
-    """Write the full result into `outdir`: all files or none.  Returns the paths written.
+    """Write the full result into `outdir`: all files or none.
 
     Everything is written into a hidden staging folder inside `outdir` and moved into
     place when complete; on any error the staging folder is removed and nothing under
     a final name has changed.
+
+    Parameters
+    ----------
+    res : optogen.pipeline.result.Result
+        A run's result.
+    outdir : str or Path
+        The target folder [-].
+
+    Returns
+    -------
+    list of Path
+        The paths written.
     """
     outdir = Path(outdir)
     try:
@@ -540,8 +673,21 @@ def _first(a) -> float:
 
 
 def point_curves(res) -> dict[str, dict[str, np.ndarray]]:
-    """Curves behind a single-point result: implied J-V, lifetime vs delta n, G(x), and for a
-    detector the spectral quantum efficiency and responsivity."""
+    """Curves behind a single-point result.
+
+    Implied J-V, lifetime vs delta n, G(x), and for a detector the spectral quantum
+    efficiency and responsivity.
+
+    Parameters
+    ----------
+    res : optogen.pipeline.result.Result
+        A single-point result.
+
+    Returns
+    -------
+    dict of str to dict of str to ndarray
+        Curve name -> column name -> values [unit in the column name].
+    """
     det = res.details
     out: dict[str, dict[str, np.ndarray]] = {}
     g = det.get("generation")

@@ -423,7 +423,7 @@ def _dn_boltzmann(prep: PreparedRates, v_over_kT):
 
 
 def _j_rec_mA(prep, W, v, dn_max=None):
-    """Recombination current q W U(Delta n(V)) [mA/cm^2] at splitting v [V]."""
+    """Recombination current q W U(Delta n(V)) [mA cm^-2] at splitting v [V]."""
     dn = _dn_at_splitting(prep, v / prep.kT, dn_max)
     return q_C * W * prep.total(dn) * 1e3
 
@@ -444,7 +444,7 @@ def _eta_series(log_y0, log_ratio, dy):
 
 
 def _operating_point(prep, W, jgen, x, levels=None):
-    """Splitting V [V] and current J = J_gen - q W U [mA/cm^2] of the absorber at Delta n = e^x [cm^-3].
+    """Splitting V [V] and current J = J_gen - q W U [mA cm^-2] of the absorber at Delta n = e^x [cm^-3].
 
     levels: optional callable (x, Delta n) -> eta_n + eta_p (`_fast_levels`); default the levels
     of `_state_flat`.
@@ -500,7 +500,17 @@ class _Levels:
             self.inv0 = [np.exp(-np.where(t, 0.0, c[0])) for t, c in zip(self.tiny, self.carriers)]
 
     def take(self, idx):
-        """The subset at positions idx [-]."""
+        """The subset at positions idx.
+
+        Parameters
+        ----------
+        idx : ndarray of int
+            Positions [-].
+
+        Returns
+        -------
+        _Levels: the levels of those points (dark constants copied, not recomputed).
+        """
         new = _Levels()
         new.carriers = [tuple(None if a is None else a[idx] for a in c) for c in self.carriers]
         new.tiny = [t[idx] for t in self.tiny]
@@ -509,6 +519,21 @@ class _Levels:
         return new
 
     def __call__(self, x, d, slope=False):
+        """eta_n + eta_p (and its slope) at x = ln Delta n.
+
+        Parameters
+        ----------
+        x : ndarray (P,)
+            ln Delta n [ln cm^-3].
+        d : ndarray (P,)
+            Delta n = e^x [cm^-3].
+        slope : bool
+            Also return d(eta_n + eta_p)/dx [-].
+
+        Returns
+        -------
+        eta [-], or (eta [-], d eta/dx [-]).
+        """
         from .equilibrium import inverse_log_fermi_dirac_half
         total, dtotal = 0.0, 0.0
         for (log0, nb, ly0, y0, f0, fi0), t, any_t, i0 in zip(self.carriers, self.tiny, self.any_tiny, self.inv0):
@@ -693,7 +718,7 @@ def _power_point(prep, W, jgen, x, levels, shift=None, need=None):
     W : ndarray (P,)
         Thickness [cm].
     jgen : ndarray (P,)
-        Photocurrent J_gen [mA/cm^2].
+        Photocurrent J_gen [mA cm^-2].
     x : ndarray (P,)
         ln Delta n [ln cm^-3].
     levels : callable
@@ -705,7 +730,7 @@ def _power_point(prep, W, jgen, x, levels, shift=None, need=None):
 
     Returns
     -------
-    V [V], J [mA/cm^2], dV/dx [V], dJ/dx [mA/cm^2], shift [-], d shift/dx [-]: V the splitting
+    V [V], J [mA cm^-2], dV/dx [V], dJ/dx [mA cm^-2], shift [-], d shift/dx [-]: V the splitting
     kT (eta_n + eta_p - shift), J = J_gen - q W U 1e3; dV/dx and dJ/dx from the analytic
     slopes of the levels (`_fast_levels`) and of the rates (`_rate_slopes`), with the
     narrowing's slope from `_shift_slope`.
@@ -755,9 +780,9 @@ def _diode_model_step(v, j, dv, dj, jgen):
     Parameters
     ----------
     v, j, dv, dj : ndarray
-        V [V], J [mA/cm^2] and their slopes in x [V], [mA/cm^2] (`_power_point`).
+        V [V], J [mA cm^-2] and their slopes in x [V], [mA cm^-2] (`_power_point`).
     jgen : ndarray
-        Photocurrent J_gen [mA/cm^2].
+        Photocurrent J_gen [mA cm^-2].
 
     Returns
     -------
@@ -804,7 +829,7 @@ def _mpp_newton(prep, levels, W, jgen, x, lo, hi, kink=None):
     levels : _Levels
         Their levels (`_fast_levels`).
     W, jgen : ndarray (C,)
-        Thickness [cm] and photocurrent [mA/cm^2].
+        Thickness [cm] and photocurrent [mA cm^-2].
     x, lo, hi : ndarray (C,)
         Start and bracket in ln Delta n [ln cm^-3], lo < x < hi.
     kink : ndarray (C,), optional
@@ -812,7 +837,7 @@ def _mpp_newton(prep, levels, W, jgen, x, lo, hi, kink=None):
 
     Returns
     -------
-    x [ln cm^-3], V [V], J [mA/cm^2] at the maximum: arrays (C,).  V with the series levels
+    x [ln cm^-3], V [V], J [mA cm^-2] at the maximum: arrays (C,).  V with the series levels
     of `_fast_levels` (within 1e-12 kT of the exact ones of `_state_flat`).
 
     References
@@ -897,11 +922,11 @@ def _mpp_candidates(p_scan, xs, found_x, found_p):
     Parameters
     ----------
     p_scan : ndarray (M + 1, n)
-        P at the scan points xs (the last one the steady state, P = 0) [mW/cm^2].
+        P at the scan points xs (the last one the steady state, P = 0) [mW cm^-2].
     xs : ndarray (M + 1, n)
         Scan points, evenly spaced from the bracket's low end to x_oc [ln cm^-3].
     found_x, found_p : ndarray (n,)
-        The maximum already found per point: ln Delta n [ln cm^-3] and P [mW/cm^2].
+        The maximum already found per point: ln Delta n [ln cm^-3] and P [mW cm^-2].
 
     Returns
     -------
@@ -1014,7 +1039,7 @@ def _best(pt, n, fx, fv, fj):
     n : int
         Number of points [-].
     fx, fv, fj : ndarray (C,)
-        ln Delta n [ln cm^-3], V [V], J [mA/cm^2] of each candidate.
+        ln Delta n [ln cm^-3], V [V], J [mA cm^-2] of each candidate.
 
     Returns
     -------
@@ -1045,9 +1070,9 @@ def _other_side_of_kink(prep, levels, W, jgen, voc, lo, x_oc, x, v, j, kink):
     prep, levels : PreparedRates, _Levels
         The n points.
     W, jgen, voc, lo, x_oc : ndarray (n,)
-        Thickness [cm], J_gen [mA/cm^2], Voc [V], the bracket [ln cm^-3].
+        Thickness [cm], J_gen [mA cm^-2], Voc [V], the bracket [ln cm^-3].
     x, v, j : ndarray (n,)
-        The maximum found: ln Delta n [ln cm^-3], V [V], J [mA/cm^2].
+        The maximum found: ln Delta n [ln cm^-3], V [V], J [mA cm^-2].
     kink : ndarray (n,)
         `_narrowing_kink_x` [ln cm^-3].
 
@@ -1086,7 +1111,7 @@ def _other_side_of_kink(prep, levels, W, jgen, voc, lo, x_oc, x, v, j, kink):
 
 
 def _mpp_flat(prep, W, jgen, voc, dn_oc, shift_oc=None):
-    """Maximum-power point (vmp [V], jmp [mA/cm^2]) on the implied J-V, parametrised by Delta n.
+    """Maximum-power point (vmp [V], jmp [mA cm^-2]) on the implied J-V, parametrised by Delta n.
 
     Each Delta n is an operating point with V = the splitting (the definition of `_state_flat`)
     and J = J_gen - q W U(Delta n); the power P = V J is maximised over x = ln Delta n in
@@ -1117,7 +1142,7 @@ def _mpp_flat(prep, W, jgen, voc, dn_oc, shift_oc=None):
     W : float or ndarray (P,)
         Thickness [cm].
     jgen : ndarray (P,)
-        Photocurrent J_gen [mA/cm^2].
+        Photocurrent J_gen [mA cm^-2].
     voc : ndarray (P,)
         Implied Voc, the steady-state splitting [V].
     dn_oc : ndarray (P,)
@@ -1128,7 +1153,7 @@ def _mpp_flat(prep, W, jgen, voc, dn_oc, shift_oc=None):
 
     Returns
     -------
-    vmp [V], jmp [mA/cm^2]: arrays (P,).
+    vmp [V], jmp [mA cm^-2]: arrays (P,).
     """
     P = len(prep)
     Wf = np.broadcast_to(np.asarray(W, dtype=float), (P,))
@@ -1202,17 +1227,17 @@ def _scan_power(prep, levels, W, jgen, lo, x_oc, j_oc, voc, s_oc, ds_oc):
     levels : _Levels
         Their levels.
     W, jgen : ndarray (n,)
-        Thickness [cm] and photocurrent [mA/cm^2].
+        Thickness [cm] and photocurrent [mA cm^-2].
     lo, x_oc : ndarray (n,)
         The bracket [ln cm^-3].
     j_oc, voc : ndarray (n,)
-        J [mA/cm^2] and V [V] at x_oc.
+        J [mA cm^-2] and V [V] at x_oc.
     s_oc, ds_oc : ndarray (n,) or None
         The shift and its slope at x_oc [-] (None without injection narrowing).
 
     Returns
     -------
-    p_scan [mW/cm^2], xs [ln cm^-3]: arrays (_MPP_SCAN + 1, n).
+    p_scan [mW cm^-2], xs [ln cm^-3]: arrays (_MPP_SCAN + 1, n).
     """
     xs = lo + (x_oc - lo) * (np.arange(_MPP_SCAN + 1)[:, None] / _MPP_SCAN)
     p_scan = np.empty(xs.shape)
@@ -1272,17 +1297,38 @@ def splitting_falls(prep, x_oc, levels=None):
 class SteadyState:
     """The uniform steady state at every operating point (arrays, one shape).
 
-    delta_n_cm3, delta_p_cm3, n_cm3, p_cm3 [cm^-3]; generation_cm3_s [cm^-3 s^-1];
-    np_over_ni2 [-] and log10_np_over_ni2 [-]; splitting_eV, electron_qfl_eV, hole_qfl_eV
-    (from Ev) [eV]; implied_voc_V [V] (= splitting_eV); implied_ff [-] (NaN at G = 0, and where
-    `splitting_falls`); tau_eff_s, tau_srh_s,
-    tau_radiative_s, tau_auger_s, tau_surface_s [s] (inf: mechanism absent);
-    injection_ratio [-]; residual: |G - U| / G [-]; converged [bool]; limiting_mechanism [str];
-    degenerate [bool]: a quasi-Fermi level within 3 kT of its band edge or inside the band
-    (Fermi-Dirac statistics then make a splitting above the gap possible); effective_gap_eV:
-    Ec - Ev under light, with the injection-dependent narrowing [eV].
     At a point with converged = False every level, density and lifetime is NaN (the point
     is outside what the models support, see `solve`).
+
+    Parameters
+    ----------
+    delta_n_cm3, delta_p_cm3, n_cm3, p_cm3 : ndarray
+        Excess and total densities [cm^-3].
+    np_over_ni2, log10_np_over_ni2 : ndarray
+        n p / n_i,eff^2 and its log10 [-].
+    splitting_eV, implied_voc_V : ndarray
+        Quasi-Fermi-level splitting [eV] and the implied Voc, the same number [V].
+    implied_ff : ndarray
+        Implied fill factor [-] (NaN at G = 0, and where `splitting_falls`).
+    tau_eff_s, tau_srh_s, tau_radiative_s, tau_auger_s, tau_surface_s : ndarray
+        Lifetimes [s] (inf: mechanism absent).
+    electron_qfl_eV, hole_qfl_eV : ndarray
+        Quasi-Fermi levels from Ev [eV].
+    injection_ratio : ndarray
+        Delta n / max(n0, p0) [-].
+    generation_cm3_s : ndarray
+        G [cm^-3 s^-1].
+    residual : ndarray
+        |G - U| / G [-].
+    converged : ndarray of bool
+        The root met the residual and lies within the models' range.
+    limiting_mechanism : ndarray of str
+        The mechanism with the largest rate.
+    degenerate : ndarray of bool
+        A quasi-Fermi level within 3 kT of its band edge or inside the band (Fermi-Dirac
+        statistics then make a splitting above the gap possible).
+    effective_gap_eV : ndarray
+        Ec - Ev under light, with the injection-dependent narrowing [eV].
     """
 
     delta_n_cm3: np.ndarray
@@ -1310,7 +1356,13 @@ class SteadyState:
     effective_gap_eV: np.ndarray
 
     def to_dict(self) -> dict:
-        """The DESIGN.md ``steady_state`` keys (tau_s nested); inf/NaN -> None for scalars, NaN in arrays."""
+        """The DESIGN.md ``steady_state`` keys (tau_s nested).
+
+        Returns
+        -------
+        dict
+            Floats (inf/NaN -> None) for one point, arrays (inf/NaN -> NaN) otherwise.
+        """
         def v(a):
             a = np.asarray(a, dtype=float)
             if a.ndim == 0:
@@ -1354,11 +1406,6 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
           with_ff: bool = True, chunk_size: int = _CHUNK) -> SteadyState:
     """Solve G = U_total(Delta n) at every operating point at once.
 
-    material: the absorber; eq: its `Equilibrium` (arrays); recombination: a `Recombination`;
-    generation_cm3_s: average generation rate G >= 0, any shape broadcasting with eq [cm^-3 s^-1];
-    thickness_cm: W [cm]; with_ff: also compute implied_ff (else NaN) [-];
-    chunk_size: points per chunk (bounds the working memory) [-].
-
     Bracketed in ln(Delta n), then Illinois regula falsi on ln U - ln G (see `_solve_flat`:
     first with n_i,eff at its dark value, where U is monotonic, then from that root with
     the injection-dependent narrowing); each point to |G - U| <= 1e-10 G.  A point that
@@ -1367,7 +1414,31 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
     the models cannot support).  G = 0 gives Delta n = 0 exactly; a G so small that Delta n
     lies below 1e-304 cm^-3 gives the linear answer G tau_low-injection (residual then limited
     by the few digits of a subnormal Delta n below 2.2e-308 cm^-3).  implied_ff is computed
-    from the same splitting as splitting_eV (see `implied_jv`).
+    from the same splitting as splitting_eV (see `implied_jv`), by `_mpp_flat`; the injection
+    narrowing at the root is evaluated once and shared by the levels, the rates, the residual
+    and the FF.
+
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    eq : Equilibrium
+        Its dark state (arrays).
+    recombination : Recombination
+        The mechanisms.
+    generation_cm3_s : float or array_like
+        Average generation rate G >= 0, any shape broadcasting with eq [cm^-3 s^-1].
+    thickness_cm : float or array_like
+        W [cm].
+    with_ff : bool
+        Also compute implied_ff (else NaN) [-].
+    chunk_size : int
+        Points per chunk (bounds the working memory) [-].
+
+    Returns
+    -------
+    SteadyState
+        Every field of the broadcast shape of eq, G and W (0-d arrays for one point).
     """
     G = _check_inputs(generation_cm3_s, thickness_cm)
     shape = _shape(eq, G, thickness_cm)
@@ -1431,12 +1502,33 @@ def solve_chunked(material, recombination: Recombination, temperature_K, donors_
                   equilibrium_kwargs=None, progress=None) -> dict:
     """Steady state for very many points with bounded memory (equilibrium computed per chunk).
 
-    temperature_K [K], donors_cm3, acceptors_cm3 [cm^-3], generation_cm3_s [cm^-3 s^-1],
-    thickness_cm [cm]: arrays broadcasting to one shape; chunk_size: points per chunk [-];
-    fields_out: `SteadyState` field names kept; equilibrium_kwargs: passed to
-    optogen.equilibrium.equilibrium (bgn_model defaults to the recombination's);
-    progress: optional callable(n_done) [-].
-    Returns dict field -> array of the broadcast shape (implied_ff is not computed).
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    recombination : Recombination
+        The mechanisms.
+    temperature_K : array_like
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : array_like
+        Dopant densities [cm^-3].
+    generation_cm3_s : array_like
+        Average generation rate [cm^-3 s^-1].
+    thickness_cm : array_like
+        W [cm]; all five arrays broadcast to one shape.
+    chunk_size : int
+        Points per chunk [-].
+    fields_out : tuple of str
+        `SteadyState` field names kept [-].
+    equilibrium_kwargs : dict, optional
+        Passed to optogen.equilibrium.equilibrium (bgn_model defaults to the recombination's).
+    progress : callable, optional
+        Called with the number of points done after each chunk [-].
+
+    Returns
+    -------
+    dict
+        Field name -> array of the broadcast shape (implied_ff is not computed).
     """
     from .equilibrium import equilibrium
     args = [np.asarray(a, dtype=float) for a in (temperature_K, donors_cm3, acceptors_cm3, generation_cm3_s,
@@ -1464,9 +1556,22 @@ def solve_chunked(material, recombination: Recombination, temperature_K, donors_
 class ImpliedJV:
     """Implied J-V curve of a uniform absorber and its figures.
 
-    voltage_V (..., M) [V]; current_mA_cm2 (..., M) [mA/cm^2]; jsc_mA_cm2 [mA/cm^2]
-    (= the photocurrent); voc_V [V]; vmp_V [V]; jmp_mA_cm2 [mA/cm^2]; pmax_mW_cm2 [mW/cm^2];
-    ff [-]; efficiency [-] (None without an irradiance).
+    Parameters
+    ----------
+    voltage_V, current_mA_cm2 : ndarray (..., M)
+        The curve [V], [mA cm^-2].
+    jsc_mA_cm2 : ndarray
+        Short-circuit current, the photocurrent [mA cm^-2].
+    voc_V, vmp_V : ndarray
+        Open-circuit and maximum-power voltages [V].
+    jmp_mA_cm2 : ndarray
+        Current at maximum power [mA cm^-2].
+    pmax_mW_cm2 : ndarray
+        Maximum power [mW cm^-2].
+    ff : ndarray
+        Fill factor [-].
+    efficiency : ndarray or None
+        P_max over the incident power [-] (None without an irradiance).
     """
 
     voltage_V: np.ndarray
@@ -1504,7 +1609,7 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     thickness_cm : float or array_like
         W [cm].
     photocurrent_mA_cm2 : float or array_like
-        J_gen > 0, broadcasting with eq [mA/cm^2].
+        J_gen > 0, broadcasting with eq [mA cm^-2].
     voltages_V : array_like (M,), optional
         Voltage grid [V] (default: `points` values from 0 to Voc per point).
     irradiance_W_m2 : float or array_like, optional
@@ -1519,11 +1624,11 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     Returns
     -------
     ImpliedJV
-        voltage_V, current_mA_cm2 (..., M) [V], [mA/cm^2]; jsc_mA_cm2, voc_V, vmp_V, jmp_mA_cm2,
-        pmax_mW_cm2, ff, efficiency [mA/cm^2, V, V, mA/cm^2, mW/cm^2, -, -].
+        voltage_V, current_mA_cm2 (..., M) [V], [mA cm^-2]; jsc_mA_cm2, voc_V, vmp_V, jmp_mA_cm2,
+        pmax_mW_cm2, ff, efficiency [mA cm^-2, V, V, mA cm^-2, mW cm^-2, -, -].
     """
     jg = np.asarray(photocurrent_mA_cm2, dtype=float)
-    check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA/cm^2")
+    check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA cm^-2")
     check_range("absorber.thickness_um", thickness_cm, 0.0, None, low_open=True)
     G = jg * 1e-3 / (q_C * np.asarray(thickness_cm, dtype=float))
     if state is None:
@@ -1612,8 +1717,12 @@ def _check_state(state, shape, G):
 class LifetimeCurve:
     """Effective lifetime and each mechanism's lifetime over an excess-density range.
 
-    delta_n_cm3 (D,) [cm^-3]; tau_eff_s, tau_srh_s, tau_radiative_s, tau_auger_s,
-    tau_surface_s: arrays (..., D) [s] (inf where a mechanism is absent).
+    Parameters
+    ----------
+    delta_n_cm3 : ndarray (D,)
+        Excess densities [cm^-3].
+    tau_eff_s, tau_srh_s, tau_radiative_s, tau_auger_s, tau_surface_s : ndarray (..., D)
+        Lifetimes [s] (inf where a mechanism is absent).
     """
 
     delta_n_cm3: np.ndarray
@@ -1627,9 +1736,23 @@ class LifetimeCurve:
 def lifetime_curve(material, eq, recombination: Recombination, thickness_cm, delta_n_cm3=None) -> LifetimeCurve:
     """tau_eff(Delta n) and each mechanism's tau = Delta n / U_x, ready for a plot.
 
-    material; eq: `Equilibrium` (any shape S); recombination; thickness_cm: W [cm];
-    delta_n_cm3: excess densities (D,) > 0 (default 1e12..1e17, 51 log-spaced) [cm^-3].
-    Returns arrays of shape S + (D,).
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    eq : Equilibrium
+        Its dark state (any shape S).
+    recombination : Recombination
+        The mechanisms.
+    thickness_cm : float or array_like
+        W [cm].
+    delta_n_cm3 : array_like (D,), optional
+        Excess densities > 0 (default 1e12..1e17, 51 log-spaced) [cm^-3].
+
+    Returns
+    -------
+    LifetimeCurve
+        Lifetimes of shape S + (D,) [s].
     """
     dn = np.logspace(12, 17, 51) if delta_n_cm3 is None else np.asarray(delta_n_cm3, dtype=float).reshape(-1)
     check_range("delta_n_cm3", dn, 0.0, None, low_open=True, unit="cm^-3")
@@ -1646,9 +1769,26 @@ def lifetime_curve(material, eq, recombination: Recombination, thickness_cm, del
 def state_at(material, eq, recombination: Recombination, delta_n_cm3, thickness_cm) -> dict:
     """Every steady-state quantity at a given excess density, without solving G = U.
 
-    For a depth-resolved profile: the state at a chosen plane.  Arrays of the
-    broadcast shape of eq and delta_n_cm3; keys as `SteadyState` fields
-    (delta_n_cm3 [cm^-3], splitting_eV [eV], tau_*_s [s], ...).
+    For a depth-resolved profile: the state at a chosen plane.
+
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    eq : Equilibrium
+        Its dark state.
+    recombination : Recombination
+        The mechanisms.
+    delta_n_cm3 : float or array_like
+        Excess density >= 0 [cm^-3].
+    thickness_cm : float or array_like
+        W [cm].
+
+    Returns
+    -------
+    dict
+        Arrays of the broadcast shape of eq, delta_n_cm3 and thickness_cm, keyed as the
+        `SteadyState` fields (delta_n_cm3 [cm^-3], splitting_eV [eV], tau_*_s [s], ...).
     """
     dn = np.asarray(delta_n_cm3, dtype=float)
     check_range("delta_n_cm3", dn, 0.0, None, unit="cm^-3")

@@ -22,7 +22,7 @@ from optogen.recombination import Defect, PreparedRates, Recombination
 from optogen.steady_state import implied_jv, solve, state_at
 
 SI = materials.get("Si")
-SUN_CM2_S = 2.5e17          # ~40 mA/cm^2 of absorbed one-sun photons per cm^2 (common practice)
+SUN_CM2_S = 2.5e17          # ~40 mA cm^-2 of absorbed one-sun photons, per cm^2 [cm^-2 s^-1] (common practice)
 FF_TOL = 1e-8
 GRID, SPAN = 4001, 40.0     # dense grid: 4001 points over 40 ln-units below the steady state
 
@@ -35,7 +35,7 @@ def _one(eq, i):
 
 
 def _power(material, eq, rec, W, jgen, x):
-    """V J [mW/cm^2] at Delta n = e^x through the public API only (state_at, Recombination.rates)."""
+    """V J [mW cm^-2] at Delta n = e^x through the public API only (state_at, Recombination.rates)."""
     dn = np.exp(x)
     v = state_at(material, eq, rec, dn, W)["splitting_eV"]
     u = sum(rec.rates(material, eq, dn, W).values())

@@ -54,7 +54,7 @@ def golden_section_mpp(prep, W, jgen, voc, dn_oc, iters=40):
     L = 4 (ln(1 + Voc/kT) + 1), 40 iterations (the narrowing evaluated at every one), the
     maximum-power point at the final midpoint with the exact levels; NaN where the splitting
     falls at the steady state (difference of V over +-1e-4 in x) or dn_oc is not positive.
-    Returns (vmp [V], jmp [mA/cm^2]).
+    Returns (vmp [V], jmp [mA cm^-2]).
     """
     op = steady_state._operating_point
     gr = (np.sqrt(5.0) - 1.0) / 2.0
@@ -131,7 +131,11 @@ def ff_figures(n=100_000):
         with np.errstate(invalid="ignore"):
             ff_new, ff_old = vn * jn / (voc * jgen), vo * jo / (voc * jgen)
         same_nan = np.array_equal(np.isnan(ff_new), np.isnan(ff_old))
-        dev = np.nanmax(np.abs(ff_new - ff_old))
+        diff = ff_new - ff_old
+        dev = np.nanmax(np.abs(diff))
+        with np.errstate(invalid="ignore"):
+            agree = np.nanmax(np.where(np.abs(diff) <= 1e-6, np.abs(diff), np.nan))
+            higher, lower = int(np.sum(diff > 1e-6)), int(np.sum(diff < -1e-6))
         e_new = _narrowing_per_point(lambda: steady_state._mpp_flat(prep, W, jgen, voc, dn, shift), lit.size)
         e_old = _narrowing_per_point(lambda: golden_section_mpp(prep, W, jgen, voc, dn), lit.size)
         e_solve = _narrowing_per_point(lambda: solve(SI, eq, rec, G, W, with_ff=False), n)
@@ -140,8 +144,11 @@ def ff_figures(n=100_000):
         print(f"  solve without FF {n / t_no:,.0f} points/s, with FF {n / t_ff:,.0f} points/s: "
               f"the FF costs {t_ff / t_no - 1:.2f}x the solve")
         print(f"  FF search alone: Newton {m / t_new:,.0f} points/s, golden section {m / t_old:,.0f} points/s, "
-              f"speed-up {t_old / t_new:.1f}x; max |FF difference| {dev:.1e}, same NaN {same_nan}, "
+              f"speed-up {t_old / t_new:.1f}x; same NaN {same_nan}; "
               f"FF of solve == FF of _mpp_flat: {np.allclose(ssf.implied_ff[lit], ff_new, rtol=0, atol=1e-14, equal_nan=True)}")
+        print(f"  FF Newton - golden section: within 1e-6 at {m - higher - lower} points (max {agree:.1e}); "
+              f"higher by up to {dev:.1e} at {higher} (a J-V with two local maxima of V J, the golden section "
+              f"on the lower one), lower at {lower}")
         if bgn != "none":
             print(f"  narrowing evaluations per point: FF {e_new:.1f} (golden section {e_old:.1f}), "
                   f"solve without FF {e_solve:.1f}")

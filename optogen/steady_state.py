@@ -26,7 +26,7 @@ import numpy as np
 
 from .constants import q_C
 from .errors import InputError, check_range
-from .recombination import MECHANISMS, PreparedRates, Recombination, _eq_shape, excess_product_cm6
+from .recombination import MECHANISMS, PreparedRates, Recombination, _eq_shape
 
 #: relative residual |G - U| / G required at every point [-]
 RTOL = 1e-10
@@ -584,71 +584,6 @@ def _fast_levels(prep):
     return _Levels(prep)
 
 
-def _rate_slopes(prep, dn, shift):
-    """Partial derivatives of the total rate U(Delta n, shift) of `PreparedRates.rates` (analytic).
-
-    With X = n p - n_i,eff^2 = Delta n (n0 + p0 + Delta n) - n0 p0 expm1(shift)
-    (dX/dDelta n = n + p, dX/dshift = -n0 p0 e^shift):
-    radiative B X; Auger X (A + C Delta n^e); J0 surfaces c X / (n0 p0 e^shift),
-    c = J0 / (q W); S surfaces S Delta n / W; SRH per level
-    X a b / (a (n + n1 e^(shift/2)) + b (p + p1 e^(shift/2))), a = 1/tau_n0, b = 1/tau_p0.
-
-    Parameters
-    ----------
-    prep : PreparedRates
-        Per-point constants of the P points.
-    dn : ndarray (P,)
-        Excess density Delta n > 0 [cm^-3].
-    shift : ndarray (P,) or float
-        ln(n_i,eff^2(n, p) / (n0 p0)) at dn [-] (0.0 without injection narrowing).
-
-    Returns
-    -------
-    dU/dDelta n at fixed shift [s^-1], dU/dshift at fixed Delta n [cm^-3 s^-1], arrays (P,).
-
-    References
-    ----------
-    W. Shockley and W. T. Read, Phys. Rev. 87, 835 (1952), doi:10.1103/PhysRev.87.835 (SRH);
-    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (the J0 law, from memory).
-    """
-    n0, p0 = prep.n0, prep.p0
-    n, p = n0 + dn, p0 + dn
-    shifted = np.ndim(shift) > 0 or shift != 0.0
-    with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
-        exc = excess_product_cm6(n0, p0, dn, shift)
-        x_d = n + p
-        de = dn ** prep.aug_e
-        aug = prep.aug_A + prep.aug_C * de
-        u_d = (prep.rad_B + aug) * x_d + exc * (prep.aug_e * prep.aug_C) * (de / dn) + prep.s_s
-        if shifted:
-            n0p0 = n0 * p0
-            es = np.exp(shift)
-            x_s = -np.where(n0p0 > 0, n0p0 * es, 0.0)
-            u_s = (prep.rad_B + aug) * x_s
-        else:
-            u_s = 0.0
-        if np.any(prep.s_j0 > 0):
-            c = prep.s_j0 * 1e-15 / (q_C * prep.s_W)           # rounded as in `surface_j0` (J0 may be subnormal)
-            ni2 = n0 * p0 * np.exp(shift) if shifted else n0 * p0
-            on = c > 0
-            u_d = u_d + np.where(on, c * x_d / ni2, 0.0)     # as `surface_j0`: c before 1 / (n0 p0)
-            if shifted:
-                u_s = u_s - np.where(on, c * n * p / ni2, 0.0)     # c first: n0 p0 may be ~1e-300
-        if prep.n1.shape[-1]:
-            a, b = prep.srh_a, prep.srh_b
-            n1, p1 = prep.n1, prep.p1
-            if shifted:
-                h = np.exp(0.5 * shift)[..., None]
-                n1, p1 = n1 * h, p1 * h
-            den = a * (n[:, None] + n1) + b * (p[:, None] + p1)
-            ok = den > 0
-            r = np.where(ok, a * b / np.where(ok, den, 1.0) ** 2, 0.0)
-            u_d = u_d + (r * (x_d[:, None] * den - exc[:, None] * (a + b))).sum(-1)
-            if shifted:
-                u_s = u_s + (r * (x_s[:, None] * den - exc[:, None] * 0.5 * (a * n1 + b * p1))).sum(-1)
-    return u_d, u_s
-
-
 #: forward step in x = ln Delta n for the slope of the injection narrowing [-] (see `_shift_slope`)
 _SHIFT_STEP = 1e-7
 #: below this Delta n / min(n0, p0) the narrowing slope is taken by the complex step [-]
@@ -732,7 +667,7 @@ def _power_point(prep, W, jgen, x, levels, shift=None, need=None):
     -------
     V [V], J [mA cm^-2], dV/dx [V], dJ/dx [mA cm^-2], shift [-], d shift/dx [-]: V the splitting
     kT (eta_n + eta_p - shift), J = J_gen - q W U 1e3; dV/dx and dJ/dx from the analytic
-    slopes of the levels (`_fast_levels`) and of the rates (`_rate_slopes`), with the
+    slopes of the levels (`_fast_levels`) and of the rates (`PreparedRates.slopes`), with the
     narrowing's slope from `_shift_slope`.
     """
     with np.errstate(over="ignore", invalid="ignore", under="ignore", divide="ignore"):
@@ -742,7 +677,7 @@ def _power_point(prep, W, jgen, x, levels, shift=None, need=None):
         ds = _shift_slope(prep, d, shift, need)
         eta, deta = levels(x, d, slope=True)
         u = sum(prep.rates(d, shift))
-        u_d, u_s = _rate_slopes(prep, d, shift)
+        u_d, u_s = prep.slopes(d, shift)
         c = q_C * W * 1e3
         v = prep.kT * (eta - shift)
         dv = prep.kT * (deta - ds)

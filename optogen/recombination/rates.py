@@ -26,7 +26,7 @@ import numpy as np
 
 from .. import registry
 from .. import schema as _schema
-from ..constants import kT_eV
+from ..constants import kT_eV, q_C
 from ..equilibrium import bgn_eV
 from ..errors import InputError, check_range
 from .intrinsic import auger_from_coefficients
@@ -357,6 +357,68 @@ class PreparedRates:
         sj = surface_j0(n0, p0, dn, self.s_j0, self.s_W, shift, J0_reference_K=None)   # s_j0 is already at T
         surf = sj + self.s_s * dn
         return srh, rad, aug, surf
+
+    def slopes(self, dn, shift):
+        """Partial derivatives of the total rate U(Delta n, shift) of `rates` (analytic, next to the rates they differentiate).
+
+        With X = n p - n_i,eff^2 = Delta n (n0 + p0 + Delta n) - n0 p0 expm1(shift)
+        (dX/dDelta n = n + p, dX/dshift = -n0 p0 e^shift):
+        radiative B X; Auger X (A + C Delta n^e); J0 surfaces c X / (n0 p0 e^shift),
+        c = J0 / (q W); S surfaces S Delta n / W; SRH per level
+        X a b / (a (n + n1 e^(shift/2)) + b (p + p1 e^(shift/2))), a = 1/tau_n0, b = 1/tau_p0.
+
+        Parameters
+        ----------
+        dn : ndarray (P,)
+            Excess density Delta n > 0 [cm^-3].
+        shift : ndarray (P,) or float
+            ln(n_i,eff^2(n, p) / (n0 p0)) at dn [-] (0.0 without injection narrowing).
+
+        Returns
+        -------
+        dU/dDelta n at fixed shift [s^-1], dU/dshift at fixed Delta n [cm^-3 s^-1], arrays (P,).
+
+        References
+        ----------
+        W. Shockley and W. T. Read, Phys. Rev. 87, 835 (1952), doi:10.1103/PhysRev.87.835 (SRH);
+        D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (the J0 law, from memory).
+        """
+        n0, p0 = self.n0, self.p0
+        n, p = n0 + dn, p0 + dn
+        shifted = np.ndim(shift) > 0 or shift != 0.0
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore", under="ignore"):
+            exc = excess_product_cm6(n0, p0, dn, shift)
+            x_d = n + p
+            de = dn ** self.aug_e
+            aug = self.aug_A + self.aug_C * de
+            u_d = (self.rad_B + aug) * x_d + exc * (self.aug_e * self.aug_C) * (de / dn) + self.s_s
+            if shifted:
+                n0p0 = n0 * p0
+                es = np.exp(shift)
+                x_s = -np.where(n0p0 > 0, n0p0 * es, 0.0)
+                u_s = (self.rad_B + aug) * x_s
+            else:
+                u_s = 0.0
+            if np.any(self.s_j0 > 0):
+                c = self.s_j0 * 1e-15 / (q_C * self.s_W)           # rounded as in `surface_j0` (J0 may be subnormal)
+                ni2 = n0 * p0 * np.exp(shift) if shifted else n0 * p0
+                on = c > 0
+                u_d = u_d + np.where(on, c * x_d / ni2, 0.0)     # as `surface_j0`: c before 1 / (n0 p0)
+                if shifted:
+                    u_s = u_s - np.where(on, c * n * p / ni2, 0.0)     # c first: n0 p0 may be ~1e-300
+            if self.n1.shape[-1]:
+                a, b = self.srh_a, self.srh_b
+                n1, p1 = self.n1, self.p1
+                if shifted:
+                    h = np.exp(0.5 * shift)[..., None]
+                    n1, p1 = n1 * h, p1 * h
+                den = a * (n[:, None] + n1) + b * (p[:, None] + p1)
+                ok = den > 0
+                r = np.where(ok, a * b / np.where(ok, den, 1.0) ** 2, 0.0)
+                u_d = u_d + (r * (x_d[:, None] * den - exc[:, None] * (a + b))).sum(-1)
+                if shifted:
+                    u_s = u_s + (r * (x_s[:, None] * den - exc[:, None] * 0.5 * (a * n1 + b * p1))).sum(-1)
+        return u_d, u_s
 
     def total(self, dn):
         """Total rate at excess density dn [cm^-3 s^-1]."""

@@ -13,6 +13,17 @@ class InputError(ValueError):
 
     The message always names the field, the value given and what is allowed,
     and, where it helps, a fix.  The CLI prints it on one line and exits 2.
+
+    Parameters
+    ----------
+    field : str
+        The dotted scenario field (``absorber.temperature_K``) or a core argument name [-].
+    value : object
+        The value given (shown shortened: an array by its shape and range) [-].
+    allowed : str
+        What is allowed, e.g. "must be > 0 K" [-].
+    hint : str, optional
+        A fix or a "did you mean ..." [-].
     """
 
     def __init__(self, field: str, value, allowed: str, hint: str | None = None):
@@ -41,7 +52,20 @@ def _show(value) -> str:
 
 
 def did_you_mean(word: str, choices: Iterable[str]) -> str | None:
-    """A "did you mean ..." hint for a misspelt key or name, or None."""
+    """A "did you mean ..." hint for a misspelt key or name.
+
+    Parameters
+    ----------
+    word : str
+        The misspelt key or name [-].
+    choices : iterable of str
+        The allowed keys or names [-].
+
+    Returns
+    -------
+    str or None
+        ``did you mean 'x'?`` for the closest choice (difflib ratio >= 0.6), or None [-].
+    """
     close = difflib.get_close_matches(str(word), list(choices), n=1, cutoff=0.6)
     return f"did you mean {close[0]!r}?" if close else None
 
@@ -50,7 +74,30 @@ def check_range(field: str, value, low=None, high=None, *, low_open=False,
                 high_open=False, unit: str = ""):
     """Raise InputError unless every element of `value` lies in the range.
 
-    NaN is always rejected.  Returns `value` as a float array (or float).
+    NaN is always rejected; infinity only when `high` is None or infinite.
+
+    Parameters
+    ----------
+    field : str
+        The field named in the error (dotted scenario path) [-].
+    value : array_like
+        The value(s) to check [unit of the field].
+    low, high : float, optional
+        The bounds (None: unbounded on that side) [unit of the field].
+    low_open, high_open : bool
+        Exclude the bound itself [-].
+    unit : str
+        The unit printed after the bounds in the error, e.g. "K" [-].
+
+    Returns
+    -------
+    ndarray or float
+        `value` as a float array (a float for a scalar) [unit of the field].
+
+    Raises
+    ------
+    InputError
+        If an element is NaN or outside the range.
     """
     arr = np.asarray(value, dtype=float)
     bad = ~np.isfinite(arr) if (high is None or np.isfinite(high)) else np.isnan(arr)
@@ -69,12 +116,22 @@ def check_range(field: str, value, low=None, high=None, *, low_open=False,
 
 @contextlib.contextmanager
 def relabel(names: Mapping[str, str]):
-    """Rename the field of an InputError raised inside the block: the one place where a core
-    function's own argument name (or a prefix such as "light.") becomes a scenario path.
+    """Rename the field of an InputError raised inside the block.
 
-    ``with relabel({"light.": "background."}): light.blackbody(...)`` turns
-    ``light.temperature_K`` into ``background.temperature_K``; a key without a trailing
+    The one place where a core function's own argument name (or a prefix such as "light.")
+    becomes a scenario path.  ``with relabel({"light.": "background."}): light.blackbody(...)``
+    turns ``light.temperature_K`` into ``background.temperature_K``; a key without a trailing
     dot must match the whole field (``{"temperature_K": "absorber.temperature_K"}``).
+
+    Parameters
+    ----------
+    names : mapping of str to str
+        Old field (or prefix ending in ".") -> new field (or prefix) [-].
+
+    Raises
+    ------
+    InputError
+        The error raised in the block, with its field renamed where a key matches.
     """
     try:
         yield

@@ -33,7 +33,18 @@ DEPTH_POINTS = 200                 #: default number of depth points [-]
 
 
 def trapezoid_weights(x):
-    """Weights w with sum(w f) == numpy.trapezoid(f, x) for a 1-D grid x; shape (L,) [unit of x]."""
+    """Trapezoidal-rule weights of a 1-D grid.
+
+    Parameters
+    ----------
+    x : array_like
+        The grid, shape (L,) [any unit].
+
+    Returns
+    -------
+    ndarray
+        Weights w, shape (L,), with sum(w f) == numpy.trapezoid(f, x) [unit of x].
+    """
     x = np.asarray(x, float)
     w = np.zeros_like(x)
     if x.size > 1:
@@ -44,13 +55,26 @@ def trapezoid_weights(x):
 
 
 def depth_mesh_cm(thickness_cm, alpha_max_cm1=0.0, points=DEPTH_POINTS):
-    """Depth mesh [cm] from 0 to thickness_cm: (points,), fine near the front.
+    """Depth mesh from 0 to the thickness, fine near the front.
 
     0, then geometric points from h0 to W with h0 = min(W / (points - 1), 0.05 / alpha_max)
     (at least 1e-12 W), so the shortest absorption length is resolved by ~20 points; with
     the default 200 points the trapezoid over the mesh integrates a 1-sun profile to about
     1e-3 for any thickness from 10 nm to 1 cm.  A transparent absorber gets a uniform mesh.
-    thickness_cm [cm]; alpha_max_cm1: largest c alpha on the grid [cm^-1]; points [-]
+
+    Parameters
+    ----------
+    thickness_cm : float
+        Absorber thickness W [cm].
+    alpha_max_cm1 : float
+        Largest c alpha on the wavelength grid [cm^-1].
+    points : int
+        Number of depths, >= 3 [-].
+
+    Returns
+    -------
+    ndarray
+        Depths, shape (points,), rising from 0 to W [cm].
     """
     W = float(thickness_cm)
     if not W > 0:
@@ -70,14 +94,32 @@ def depth_mesh_cm(thickness_cm, alpha_max_cm1=0.0, points=DEPTH_POINTS):
 class Generation:
     """Optical generation in an absorber; leading axes broadcast over temperature.
 
-    temperature_K (...) [K]; thickness_cm [cm]; light_path [-]
-    wavelength_nm (L,) [nm]; depth_cm (X,) [cm]
-    front_reflectance (..., L) [-]; absorptance (..., L) [-]
-    absorbed_photon_flux_cm2_s_nm: absorbed spectrum Phi A (..., L) [cm^-2 s^-1 nm^-1]
-    profile_cm3_s: G(x) (..., X) [cm^-3 s^-1]
-    average_cm3_s: <G> = J_ph / (q W) (...) [cm^-3 s^-1]
-    photocurrent_mA_cm2: J_ph = q integral Phi A dlambda (...) [mA cm^-2]
-    absorbed_fraction: absorbed / incident photons (...) [-]; NaN for a dark source
+    Parameters
+    ----------
+    temperature_K : ndarray
+        Temperature(s), shape (...), only recorded [K].
+    thickness_cm : float
+        Absorber thickness W [cm].
+    light_path : str
+        Canonical light path name [-].
+    wavelength_nm : ndarray
+        Wavelength grid, shape (L,) [nm].
+    depth_cm : ndarray
+        Depth mesh, shape (X,) [cm].
+    front_reflectance : ndarray
+        Front reflectance, shape (..., L) [-].
+    absorptance : ndarray
+        Absorptance A, shape (..., L) [-].
+    absorbed_photon_flux_cm2_s_nm : ndarray
+        Absorbed spectrum Phi A, shape (..., L) [cm^-2 s^-1 nm^-1].
+    profile_cm3_s : ndarray
+        G(x), shape (..., X) [cm^-3 s^-1].
+    average_cm3_s : ndarray
+        <G> = J_ph / (q W), shape (...) [cm^-3 s^-1].
+    photocurrent_mA_cm2 : ndarray
+        J_ph = q integral Phi A dlambda, shape (...) [mA cm^-2].
+    absorbed_fraction : ndarray
+        Absorbed / incident photons, shape (...); NaN for a dark source [-].
     """
 
     temperature_K: np.ndarray
@@ -96,7 +138,11 @@ class Generation:
     def to_dict(self) -> dict:
         """The DESIGN.md `generation` block: average_cm3_s, photocurrent_mA_cm2, absorbed_fraction.
 
-        Scalars become floats, arrays lists; NaN (a dark source's absorbed fraction) becomes None.
+        Returns
+        -------
+        dict
+            Name -> value; scalars become floats, arrays lists; NaN (a dark source's absorbed
+            fraction) becomes None [unit of the name].
         """
         def plain(v):
             v = np.asarray(v, float)
@@ -107,14 +153,38 @@ class Generation:
 
 
 def profile_cm3_s(depth_cm, wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, thickness_cm, n, front_R,
-                  rear_R, path="lambertian"):
-    """Generation profile G(x) [cm^-3 s^-1], shape (..., X), without chunking (see `compute`).
+                  rear_R, light_path="lambertian"):
+    """Generation profile G(x) without chunking (see `compute`).
 
-    depth_cm (X,) [cm]; wavelength_nm (L,) [nm]; photon_flux_cm2_s_nm (L,) [cm^-2 s^-1 nm^-1];
-    alpha_cm1, n, front_R, rear_R (..., L) or broadcastable [cm^-1], [-]; thickness_cm [cm];
-    path: single | mirror | lambertian
+    Parameters
+    ----------
+    depth_cm : array_like
+        Depths, shape (X,) [cm].
+    wavelength_nm : array_like
+        Wavelength grid, shape (L,) [nm].
+    photon_flux_cm2_s_nm : array_like
+        Incident spectral photon flux, shape (L,) [cm^-2 s^-1 nm^-1].
+    alpha_cm1 : array_like
+        Absorption coefficient, shape (..., L) or broadcastable [cm^-1].
+    thickness_cm : float
+        Absorber thickness W [cm].
+    n : array_like
+        Refractive index, broadcastable to (..., L) [-].
+    front_R, rear_R : array_like
+        Front and rear reflectance, broadcastable to (..., L) [-].
+    light_path : str
+        "single" | "mirror" | "lambertian" [-].
+
+    Returns
+    -------
+    ndarray
+        G(x), shape (..., X) [cm^-3 s^-1].
+
+    References
+    ----------
+    M. A. Green, Prog. Photovolt. Res. Appl. 10, 235 (2002), doi:10.1002/pip.404 (from memory).
     """
-    p = optics.passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path)
+    p = optics.passes(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path)
     return _profile(np.asarray(depth_cm, float), trapezoid_weights(wavelength_nm) * np.asarray(photon_flux_cm2_s_nm, float),
                     np.asarray(alpha_cm1, float), float(thickness_cm), p)
 
@@ -179,14 +249,41 @@ def _two_passes(a_down, a_up, k, x, W, scratch):
 
 
 def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, front_R=0.0, rear_R=1.0,
-            light_path="lambertian", depth_cm=None, temperature_K=np.nan, with_profile=True) -> Generation:
+            light_path="lambertian", depth_cm=None, T_K=np.nan, with_profile=True) -> Generation:
     """Generation from arrays (the core behind `generate`).
 
-    wavelength_nm (L,) [nm]; photon_flux_cm2_s_nm (L,) incident [cm^-2 s^-1 nm^-1];
-    alpha_cm1, n (..., L) [cm^-1], [-]; thickness_cm [cm]; front_R, rear_R broadcastable
-    to (..., L) [-]; light_path: single | mirror | lambertian; depth_cm (X,) [cm] or None for
-    `depth_mesh_cm`; temperature_K (...) [K], only recorded; with_profile: also compute G(x)
-    (False: depth_cm and profile_cm3_s are empty, for sweeps that need only the averages).
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Wavelength grid, shape (L,) [nm].
+    photon_flux_cm2_s_nm : array_like
+        Incident spectral photon flux, shape (L,) [cm^-2 s^-1 nm^-1].
+    alpha_cm1 : array_like
+        Absorption coefficient, shape (..., L) [cm^-1].
+    n : array_like
+        Refractive index, shape (..., L) [-].
+    thickness_cm : float
+        Absorber thickness W [cm].
+    front_R, rear_R : array_like
+        Front and rear reflectance, broadcastable to (..., L) [-].
+    light_path : str
+        "single" | "mirror" | "lambertian" [-].
+    depth_cm : array_like, optional
+        Depths, shape (X,), or None for `depth_mesh_cm` [cm].
+    T_K : array_like
+        Temperature(s), shape (...), only recorded (as `Generation.temperature_K`) [K].
+    with_profile : bool
+        Also compute G(x) (False: depth_cm and profile_cm3_s are empty, for sweeps that need
+        only the averages) [-].
+
+    Returns
+    -------
+    Generation
+        Absorptance, absorbed spectrum, G(x), <G>, J_ph and the absorbed fraction.
+
+    References
+    ----------
+    M. A. Green, Prog. Photovolt. Res. Appl. 10, 235 (2002), doi:10.1002/pip.404 (from memory).
     """
     wl = np.asarray(wavelength_nm, float)
     phi = np.asarray(photon_flux_cm2_s_nm, float)
@@ -210,7 +307,7 @@ def compute(wavelength_nm, photon_flux_cm2_s_nm, alpha_cm1, n, thickness_cm, fro
     with np.errstate(invalid="ignore", divide="ignore"):
         fraction = absorbed_total / incident if incident > 0 else np.full(absorbed_total.shape, np.nan)
     return Generation(
-        temperature_K=np.asarray(temperature_K, float), thickness_cm=W, light_path=name,
+        temperature_K=np.asarray(T_K, float), thickness_cm=W, light_path=name,
         wavelength_nm=wl, depth_cm=x,
         front_reflectance=np.broadcast_to(np.asarray(front_R, float), A.shape),
         absorptance=A, absorbed_photon_flux_cm2_s_nm=absorbed,
@@ -225,15 +322,38 @@ def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0,
              base_dir=".", with_profile=True) -> Generation:
     """Generation of `spectrum` in an absorber of `material`, broadcast over T_K.
 
-    spectrum: light.Spectrum; material: materials.Material or a built-in name
-    thickness_cm: absorber thickness [cm]; T_K: temperature(s), any shape [K]
-    front_reflectance: number | "bare" | coating table | file table (optics.front_reflectance) [-]
-    rear_reflectance: [0, 1] [-]; light_path: single | mirror | lambertian
-    depth_cm: depth mesh (X,) [cm] or None (automatic); coating: {"n_coating", "thickness_nm"}
-    as an alternative to a coating table in front_reflectance
-    page, csv_path: optical-constant source passed to materials.optical_constants
-    base_dir: directory that relative file paths refer to
-    with_profile: also compute G(x) (see `compute`)
+    Parameters
+    ----------
+    spectrum : light.Spectrum
+        The incident light.
+    material : materials.Material or str
+        The absorber, or a built-in name [-].
+    thickness_cm : float
+        Absorber thickness [cm].
+    T_K : array_like
+        Temperature(s), any shape [K].
+    front_reflectance : float, str or mapping
+        Number | "bare" | coating table | file table (`optics.front_reflectance`) [-].
+    rear_reflectance : float
+        Rear reflectance, [0, 1] [-].
+    light_path : str
+        "single" | "mirror" | "lambertian" [-].
+    depth_cm : array_like, optional
+        Depth mesh, shape (X,), or None (automatic) [cm].
+    coating : mapping, optional
+        {"n_coating", "thickness_nm"}, as an alternative to a coating table in
+        front_reflectance [-].
+    page, csv_path : str, optional
+        Optical-constant source passed to `materials.optical_constants` [-].
+    base_dir : str or Path
+        Directory that relative file paths refer to [-].
+    with_profile : bool
+        Also compute G(x) (see `compute`) [-].
+
+    Returns
+    -------
+    Generation
+        Broadcast over the shape of `T_K`.
     """
     from . import materials
     if isinstance(material, str):
@@ -254,27 +374,38 @@ def generate(spectrum, material, thickness_cm, T_K=300.0, front_reflectance=0.0,
     oc = materials.optical_constants(material, wl, T[..., None], page=page, csv_path=csv_path)
     Rf = optics.front_reflectance(front_reflectance, wl, oc.n, oc.k, base_dir=base_dir)
     return compute(wl, flux, oc.alpha_cm1, oc.n, thickness_cm, Rf, rear_reflectance,
-                   light_path, depth_cm, temperature_K=T, with_profile=with_profile or depth_cm is not None)
+                   light_path, depth_cm, T_K=T, with_profile=with_profile or depth_cm is not None)
 
 
 def absorbed_fraction_below_eV(wavelength_nm, absorbed_photon_flux_cm2_s_nm, rows, energy_eV):
-    """Fraction of the absorbed photons with h nu <= energy_eV, per point [-].
+    """Fraction of the absorbed photons with h nu <= energy_eV, per point.
 
     Used with the quasi-Fermi-level splitting as `energy_eV`: such photons see net gain
     instead of absorption once the quasi-Fermi levels are split by more than their energy
-    (M. G. A. Bernard and G. Duraffourg, Phys. Status Solidi 1, 699 (1961), from memory),
-    so linear absorption, the model behind G, no longer holds for them.
+    (Bernard and Duraffourg 1961), so linear absorption, the model behind G, no longer holds
+    for them.
 
     Parameters
     ----------
-    wavelength_nm : wavelength grid (L,) [nm]
-    absorbed_photon_flux_cm2_s_nm : absorbed spectral photon flux (R, L) or (L,) [cm^-2 s^-1 nm^-1]
-    rows : for each point, the row of the flux it uses (P,) [-]
-    energy_eV : the threshold photon energy of each point (P,) [eV]; NaN counts nothing
+    wavelength_nm : array_like
+        Wavelength grid, shape (L,) [nm].
+    absorbed_photon_flux_cm2_s_nm : array_like
+        Absorbed spectral photon flux, shape (R, L) or (L,) [cm^-2 s^-1 nm^-1].
+    rows : array_like of int
+        For each point, the row of the flux it uses, shape (P,) [-].
+    energy_eV : array_like
+        The threshold photon energy of each point, shape (P,); NaN counts nothing [eV].
 
     Returns
     -------
-    Fraction (P,) of the absorbed photon flux at or below energy_eV [-] (0 where nothing is absorbed).
+    ndarray
+        Fraction, shape (P,), of the absorbed photon flux at or below energy_eV (0 where
+        nothing is absorbed) [-].
+
+    References
+    ----------
+    M. G. A. Bernard and G. Duraffourg, Phys. Status Solidi 1, 699 (1961),
+    doi:10.1002/pssb.19610010703 (from memory).
     """
     wl = np.asarray(wavelength_nm, dtype=float)
     absorbed = np.reshape(absorbed_photon_flux_cm2_s_nm, (-1, wl.size)) * trapezoid_weights(wl)

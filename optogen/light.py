@@ -54,9 +54,14 @@ _PHOTON_PER_W_nm = 1e-9 / (h_J_s * c_m_s) * 1e-4   # E [W m^-2 nm^-1] * lambda [
 class Spectrum:
     """Spectral irradiance on a wavelength grid.
 
-    wavelength_nm: strictly rising wavelengths, shape (L,) [nm]
-    irradiance_W_m2_nm: spectral irradiance, shape (L,) [W m^-2 nm^-1]
-    name: a label, e.g. "AM1.5G x 1 sun" [-]
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Strictly rising wavelengths, shape (L,) [nm].
+    irradiance_W_m2_nm : array_like
+        Spectral irradiance, shape (L,) [W m^-2 nm^-1].
+    name : str
+        A label, e.g. "AM1.5G x 1 sun" [-].
     """
 
     wavelength_nm: np.ndarray
@@ -88,30 +93,71 @@ class Spectrum:
         return float(np.trapezoid(self.photon_flux_cm2_s_nm, self.wavelength_nm))
 
     def scaled(self, **scaling) -> "Spectrum":
-        """This spectrum rescaled; keywords as for `scale` (exactly one scaling)."""
+        """This spectrum rescaled (see `scale`).
+
+        Parameters
+        ----------
+        **scaling
+            Exactly one scaling, keywords as for `scale` (``suns``, ``irradiance_W_m2``,
+            ``power_W`` with a spot, ``photon_flux_cm2_s``) [unit of the keyword].
+
+        Returns
+        -------
+        Spectrum
+            The rescaled spectrum.
+        """
         return scale(self, **scaling)
 
     def __repr__(self):
         return (f"Spectrum({self.name!r}, {self.wavelength_nm.size} points, "
                 f"{self.wavelength_nm[0]:g}-{self.wavelength_nm[-1]:g} nm, "
-                f"{self.irradiance_W_m2:.6g} W/m^2)")
+                f"{self.irradiance_W_m2:.6g} W m^-2)")
 
 
 def photon_flux_cm2_s_nm(wavelength_nm, irradiance_W_m2_nm):
-    """Spectral photon flux Phi = E lambda / (h c) [cm^-2 s^-1 nm^-1].
+    """Spectral photon flux Phi = E lambda / (h c).
 
-    wavelength_nm [nm]; irradiance_W_m2_nm: spectral irradiance [W m^-2 nm^-1].
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Wavelength [nm].
+    irradiance_W_m2_nm : array_like
+        Spectral irradiance E [W m^-2 nm^-1].
+
+    Returns
+    -------
+    ndarray
+        Spectral photon flux [cm^-2 s^-1 nm^-1].
     """
     return np.asarray(irradiance_W_m2_nm, float) * np.asarray(wavelength_nm, float) * _PHOTON_PER_W_nm
 
 
 def irradiance_from_photon_flux(wavelength_nm, photon_flux_cm2_s_nm):
-    """Spectral irradiance E = Phi h c / lambda [W m^-2 nm^-1] from a photon flux [cm^-2 s^-1 nm^-1]."""
+    """Spectral irradiance E = Phi h c / lambda from a spectral photon flux.
+
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Wavelength [nm].
+    photon_flux_cm2_s_nm : array_like
+        Spectral photon flux Phi [cm^-2 s^-1 nm^-1].
+
+    Returns
+    -------
+    ndarray
+        Spectral irradiance [W m^-2 nm^-1].
+    """
     return np.asarray(photon_flux_cm2_s_nm, float) / (np.asarray(wavelength_nm, float) * _PHOTON_PER_W_nm)
 
 
 def names() -> list[str]:
-    """Standard spectra and source kinds accepted by `source_from_table` (`light.source`)."""
+    """Standard spectra and source kinds accepted by `source_from_table` (`light.source`).
+
+    Returns
+    -------
+    list of str
+        "AM1.5G", "AM1.5D", "AM0", then the source kinds [-].
+    """
     return list(STANDARD) + list(SOURCE_KINDS)
 
 
@@ -129,7 +175,21 @@ def standard(name: str) -> Spectrum:
 
     Lookup ignores case and separators ("am1.5g", "AM15G").  Data: ASTM G173-03
     (copies in optogen/spectra, provenance on each file's first line).
-    name: standard spectrum name [-]
+
+    Parameters
+    ----------
+    name : str
+        Standard spectrum name or alias [-].
+
+    Returns
+    -------
+    Spectrum
+        The tabulated spectrum.
+
+    References
+    ----------
+    ASTM G173-03, Standard Tables for Reference Solar Spectral Irradiances: Direct Normal and
+    Hemispherical on 37 deg Tilted Surface (ASTM International, 2003).
     """
     key = _standard_key(name)
     if key is None:
@@ -153,8 +213,24 @@ def read_columns(path, value_columns, field="light.path"):
     the header.  Checks: the header names wavelength_nm and one allowed column;
     every row has two finite numbers; wavelengths rise strictly; values are
     non-negative; at least two rows.  Errors name the file, the line and the problem.
-    path: the CSV file; value_columns: allowed names of the second column [-]
-    Returns (wavelength_nm [nm], values [unit of the column], column name).
+
+    Parameters
+    ----------
+    path : str, Path or Traversable
+        The CSV file [-].
+    value_columns : sequence of str
+        Allowed names of the second column [-].
+    field : str
+        The scenario field named in errors [-].
+
+    Returns
+    -------
+    wavelength_nm : ndarray
+        Wavelengths [nm].
+    values : ndarray
+        The second column [unit of the column].
+    column : str
+        The column name, as spelt in `value_columns` [-].
     """
     try:
         text = Path(path).read_text(encoding="utf-8") if isinstance(path, (str, Path)) else path.read_text()
@@ -206,11 +282,25 @@ def from_file(path, wavelength_column=None, irradiance_column=None, wavelength_u
               field: str = "light.path") -> Spectrum:
     """A measured spectrum from a delimited text file (`read_spectrum`); values taken as absolute.
 
-    path: the file [-]; wavelength_column, irradiance_column: the columns to use, a header
-    name or a 1-based number (default: the first wavelength/energy column and the only
-    irradiance/photon-flux column) [-]; wavelength_unit: "nm", "um" or "eV" (default from
-    the header) [-]; irradiance_unit: e.g. "W m^-2 nm^-1", "W m^-2 um^-1", "W m^-2 eV^-1",
-    "cm^-2 s^-1 nm^-1" (default from the header) [-]
+    Parameters
+    ----------
+    path : str or Path
+        The file [-].
+    wavelength_column, irradiance_column : str or int, optional
+        The columns to use, a header name or a 1-based number (default: the first
+        wavelength/energy column and the only irradiance/photon-flux column) [-].
+    wavelength_unit : str, optional
+        "nm", "um" or "eV" (default from the header) [-].
+    irradiance_unit : str, optional
+        E.g. "W m^-2 nm^-1", "W m^-2 um^-1", "W m^-2 eV^-1", "cm^-2 s^-1 nm^-1" (default
+        from the header) [-].
+    field : str
+        The scenario field named in errors [-].
+
+    Returns
+    -------
+    Spectrum
+        The spectrum, named after the file.
     """
     wl, E = read_spectrum(path, wavelength_column, irradiance_column, wavelength_unit, irradiance_unit, field)
     return Spectrum(wl, E, Path(str(path)).name)
@@ -321,11 +411,28 @@ def read_spectrum(path, wavelength_column=None, irradiance_column=None, waveleng
     Jacobian |dE/dlambda| = hc / lambda^2, a photon flux with E = Phi hc / lambda.
     Without a header, `wavelength_unit` and `irradiance_unit` must be given (columns 1, 2).
 
-    path: the file [-]; wavelength_column, irradiance_column: a header name or a 1-based
-    column number [-]; wavelength_unit, irradiance_unit: override the header's units [-];
-    field: the scenario field named in errors [-].
-    Returns wavelength_nm [nm] (strictly rising) and irradiance_W_m2_nm [W m^-2 nm^-1].
-    Errors (InputError) name the file, the line and column, and what is allowed.
+    Parameters
+    ----------
+    path : str, Path or Traversable
+        The file [-].
+    wavelength_column, irradiance_column : str or int, optional
+        A header name or a 1-based column number [-].
+    wavelength_unit, irradiance_unit : str, optional
+        Override the header's units [-].
+    field : str
+        The scenario field named in errors [-].
+
+    Returns
+    -------
+    wavelength_nm : ndarray
+        Wavelengths, strictly rising [nm].
+    irradiance_W_m2_nm : ndarray
+        Spectral irradiance [W m^-2 nm^-1].
+
+    Raises
+    ------
+    InputError
+        Naming the file, the line and column, and what is allowed.
     """
     name = str(path)
     try:
@@ -464,10 +571,23 @@ def read_spectrum(path, wavelength_column=None, irradiance_column=None, waveleng
 
 
 def spectrum_from_data(data, field: str = "spectrum") -> Spectrum:
-    """A Spectrum from Python data: a `Spectrum`; a pair (wavelength [nm], spectral irradiance
-    [W m^-2 nm^-1]) of arrays; a pandas Series (index: wavelength [nm], values: irradiance
-    [W m^-2 nm^-1]; a unit in the index or series name, e.g. "wavelength (um)", is read as in
-    a file); or a pandas DataFrame with columns named as in a file (`read_spectrum`)."""
+    """A Spectrum from Python data.
+
+    Parameters
+    ----------
+    data : Spectrum, tuple of array_like, pandas.Series or pandas.DataFrame
+        A `Spectrum`; a pair (wavelength [nm], spectral irradiance [W m^-2 nm^-1]) of arrays;
+        a pandas Series (index: wavelength [nm], values: irradiance [W m^-2 nm^-1]; a unit in
+        the index or series name, e.g. "wavelength (um)", is read as in a file); or a pandas
+        DataFrame with columns named as in a file (`read_spectrum`).
+    field : str
+        The field named in errors [-].
+
+    Returns
+    -------
+    Spectrum
+        The spectrum, rising in wavelength.
+    """
     if isinstance(data, Spectrum):
         return data
     if hasattr(data, "to_csv") and hasattr(data, "index"):       # pandas: go through the file reader's rules
@@ -515,55 +635,110 @@ def spectrum_from_data(data, field: str = "spectrum") -> Spectrum:
 # Sources
 # ---------------------------------------------------------------------------
 
-def planck_W_m2_nm_sr(wavelength_nm, temperature_K):
-    """Planck's law, spectral radiance per wavelength B_lambda(T) [W m^-2 nm^-1 sr^-1].
+def planck_W_m2_nm_sr(wavelength_nm, T_K):
+    """Planck's law, spectral radiance per wavelength B_lambda(T).
 
-    B_lambda = 2 h c^2 / lambda^5 / (exp(h c / (lambda k T)) - 1)
-    M. Planck, Ann. Phys. 309, 553 (1901).  Written as exp(-x) / (1 - exp(-x)) so that
-    large x = hc/(lambda k T) underflows to 0 instead of overflowing.
-    wavelength_nm [nm]; temperature_K [K]; broadcast together.
+    B_lambda = 2 h c^2 / lambda^5 / (exp(h c / (lambda k T)) - 1).  Written as
+    exp(-x) / (1 - exp(-x)) so that large x = hc/(lambda k T) underflows to 0 instead of
+    overflowing.
+
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Wavelength [nm].
+    T_K : array_like
+        Temperature, broadcast with `wavelength_nm` [K].
+
+    Returns
+    -------
+    ndarray
+        Spectral radiance B_lambda [W m^-2 nm^-1 sr^-1].
+
+    References
+    ----------
+    M. Planck, Ann. Phys. 309, 553 (1901), doi:10.1002/andp.19013090310 (from memory).
     """
     lam_m = np.asarray(wavelength_nm, float) * 1e-9
-    x = h_J_s * c_m_s / (lam_m * k_B_J_K * np.asarray(temperature_K, float))
+    x = h_J_s * c_m_s / (lam_m * k_B_J_K * np.asarray(T_K, float))
     return 2.0 * h_J_s * c_m_s**2 / lam_m**5 * np.exp(-x) / -np.expm1(-x) * 1e-9
 
 
-def blackbody_grid_nm(temperature_K, points=2000):
-    """Default wavelength grid for a blackbody at temperature_K [K]: (points,) [nm].
+def blackbody_grid_nm(T_K, points=2000):
+    """Default wavelength grid for a blackbody.
 
     Log-spaced in x = hc/(lambda k T) from 50 down to 0.01, i.e. from about 0.1x to 500x
     the Wien peak wavelength, so any temperature from a few K to 10^4 K keeps all but
     ~1e-7 of its power (tails: x^3 e^-x at x = 50 and x^3/3 at x = 0.01, against pi^4/15).
+
+    Parameters
+    ----------
+    T_K : float
+        Blackbody temperature [K].
+    points : int
+        Number of wavelengths [-].
+
+    Returns
+    -------
+    ndarray
+        Wavelengths, shape (points,), rising [nm].
     """
-    lam_x1_nm = h_J_s * c_m_s / (k_B_J_K * float(temperature_K)) * 1e9   # where x = 1 [nm]
+    lam_x1_nm = h_J_s * c_m_s / (k_B_J_K * float(T_K)) * 1e9   # where x = 1 [nm]
     return np.geomspace(lam_x1_nm / 50.0, lam_x1_nm / 0.01, points)
 
 
 def half_angle_from_f_number_deg(f_number, field="light.f_number"):
-    """Cone half-angle theta = arctan(1 / (2F)) of an f/F aperture [deg].
+    """Cone half-angle theta = arctan(1 / (2F)) of an f/F aperture.
 
-    Then sin^2(theta) = 1 / (1 + 4 F^2), the usual cold-shield factor (A. Rogalski,
-    Infrared Detectors, 2nd ed., CRC 2011, ch. 3; from memory).  f_number in
-    (F_NUMBER_MIN, F_NUMBER_MAX] = (0.5, 100] of `optogen.schema` [-]: f/0.5 is the
+    Then sin^2(theta) = 1 / (1 + 4 F^2), the usual cold-shield factor.  f/0.5 is the
     aplanatic limit, where sin(theta) = 1/(2F) reaches 1 (a full hemisphere; no
     faster f-number exists), above 100 the aperture is a pinhole.  The cone used
     here, tan(theta) = 1/(2F), is the common cold-shield form.
+
+    Parameters
+    ----------
+    f_number : float
+        The f-number F, in (F_NUMBER_MIN, F_NUMBER_MAX] = (0.5, 100] of `optogen.schema` [-].
+    field : str
+        The field named in errors [-].
+
+    Returns
+    -------
+    float
+        Half-angle theta [deg].
+
+    References
+    ----------
+    A. Rogalski, Infrared Detectors, 2nd ed. (CRC Press, 2011), ch. 3 (from memory).
     """
     F = check_range(field, f_number, _schema.F_NUMBER_MIN, _schema.F_NUMBER_MAX, low_open=True, unit="(f-number)")
     return math.degrees(math.atan(1.0 / (2.0 * F)))
 
 
-def cold_filter_grid_nm(temperature_K, cuton_nm=None, cutoff_nm=None, points=2000, field="light"):
+def cold_filter_grid_nm(T_K, cuton_nm=None, cutoff_nm=None, points=2000, field="light"):
     """Wavelength grid [nm] of a blackbody seen through an ideal band-pass cold filter.
 
     The filter transmits 1 from cuton_nm to cutoff_nm and 0 outside (either edge
     may be omitted: a long-pass or short-pass filter).  The grid runs
     log-spaced from edge to edge (the default `blackbody_grid_nm` limits for a
     missing edge), so the trapezoid integrates exactly the band.
-    temperature_K [K]; cuton_nm, cutoff_nm [nm]; points [-]; field: prefix of the
-    field names in errors.
+
+    Parameters
+    ----------
+    T_K : float
+        Blackbody temperature [K].
+    cuton_nm, cutoff_nm : float, optional
+        The band edges [nm].
+    points : int
+        Number of wavelengths [-].
+    field : str
+        Prefix of the field names in errors [-].
+
+    Returns
+    -------
+    ndarray
+        Wavelengths, shape (points,), rising [nm].
     """
-    full = blackbody_grid_nm(temperature_K, points)
+    full = blackbody_grid_nm(T_K, points)
     lo = full[0] if cuton_nm is None else check_range(f"{field}.cuton_nm", cuton_nm, 0.0, low_open=True, unit="nm")
     hi = full[-1] if cutoff_nm is None else check_range(f"{field}.cutoff_nm", cutoff_nm, 0.0, low_open=True,
                                                         unit="nm")
@@ -575,23 +750,51 @@ def cold_filter_grid_nm(temperature_K, cuton_nm=None, cutoff_nm=None, points=200
     return np.geomspace(lo, hi, points)
 
 
-def blackbody(temperature_K, field_of_view_deg=90.0, emissivity=1.0, wavelength_nm=None, *,
-              f_number=None, cuton_nm=None, cutoff_nm=None) -> Spectrum:
+def blackbody(T_K=None, field_of_view_deg=90.0, emissivity=1.0, wavelength_nm=None, *,
+              f_number=None, cuton_nm=None, cutoff_nm=None, temperature_K=None) -> Spectrum:
     """Irradiance on a flat detector from a Lambertian (grey) emitter filling a cone.
 
     E_lambda = emissivity * pi * sin^2(theta) * B_lambda(T), theta = field-of-view half-angle;
     pi sin^2(theta) is the projected solid angle of a cone of half-angle theta seen by a flat
     surface (90 deg = full hemisphere, pi sr).  Total at 90 deg: emissivity sigma T^4
-    (Stefan-Boltzmann).  Use for a warm background seen by a cooled detector.
-    temperature_K: emitter temperature [K]
-    field_of_view_deg: half-angle of the cone the emitter fills, (0, 90] [deg]
-    emissivity: grey emissivity, [0, 1] [-]
-    wavelength_nm: grid [nm]; default `blackbody_grid_nm(temperature_K)`, or the filter band
-    f_number: the cone as an f/F aperture instead of field_of_view_deg
-        (`half_angle_from_f_number_deg`: sin^2(theta) = 1 / (1 + 4 F^2)) [-]
-    cuton_nm, cutoff_nm: an ideal cold filter passing only this band (`cold_filter_grid_nm`) [nm]
+    (Stefan-Boltzmann).  Use for a warm background seen by a cooled detector.  Errors name
+    the [light] keys (``light.temperature_K``, ...).
+
+    Parameters
+    ----------
+    T_K : float
+        Emitter temperature [K].
+    field_of_view_deg : float
+        Half-angle of the cone the emitter fills, (0, 90] [deg].
+    emissivity : float
+        Grey emissivity, [0, 1] [-].
+    wavelength_nm : array_like, optional
+        Grid [nm]; default `blackbody_grid_nm(T_K)`, or the filter band.
+    f_number : float, optional
+        The cone as an f/F aperture instead of field_of_view_deg
+        (`half_angle_from_f_number_deg`: sin^2(theta) = 1 / (1 + 4 F^2)) [-].
+    cuton_nm, cutoff_nm : float, optional
+        An ideal cold filter passing only this band (`cold_filter_grid_nm`) [nm].
+    temperature_K : float, optional
+        Former name of `T_K`, kept for callers that pass it by keyword [K].
+
+    Returns
+    -------
+    Spectrum
+        Spectral irradiance on the detector.
+
+    References
+    ----------
+    M. Planck, Ann. Phys. 309, 553 (1901), doi:10.1002/andp.19013090310 (from memory);
+    A. Rogalski, Infrared Detectors, 2nd ed. (CRC Press, 2011), ch. 3 (from memory).
     """
-    T = check_range("light.temperature_K", temperature_K, 0.0, None, low_open=True, unit="K")
+    if temperature_K is not None:
+        if T_K is not None:
+            raise InputError("light.temperature_K", temperature_K, "one temperature: T_K or temperature_K, not both")
+        T_K = temperature_K
+    if T_K is None:
+        raise TypeError("blackbody() missing the emitter temperature T_K")
+    T = check_range("light.temperature_K", T_K, 0.0, None, low_open=True, unit="K")
     if f_number is not None:
         fov = half_angle_from_f_number_deg(f_number)
     else:
@@ -626,10 +829,22 @@ def _check_grid(wavelength_nm):
 
 
 def illuminated_area_cm2(spot_area_cm2=None, beam_diameter_mm=None) -> float:
-    """The illuminated area [cm^2] from exactly one of spot_area_cm2 [cm^2] or beam_diameter_mm [mm].
+    """The illuminated area from exactly one of a spot area or a beam diameter.
 
     The power is taken as spread evenly (top-hat) over the area pi d^2 / 4; for a Gaussian
     beam with 1/e^2 diameter d the centre irradiance is twice that average.
+
+    Parameters
+    ----------
+    spot_area_cm2 : float, optional
+        Spot area [cm^2].
+    beam_diameter_mm : float, optional
+        Beam diameter d [mm].
+
+    Returns
+    -------
+    float
+        Illuminated area [cm^2].
     """
     if (spot_area_cm2 is None) == (beam_diameter_mm is None):
         raise InputError("light.spot_area_cm2", spot_area_cm2,
@@ -647,7 +862,22 @@ def laser(wavelength_nm, power_W, spot_area_cm2=None, beam_diameter_mm=None) -> 
     samples, lambda0 -/+ FWHM at zero and lambda0 at the peak.  The trapezoidal rule then
     integrates any f(lambda) E(lambda) over the line to exactly f(lambda0) P / area, so
     photon counting gives q P lambda0 / (h c) per area with no discretisation error.
-    wavelength_nm [nm]; power_W [W]; spot_area_cm2 [cm^2] or beam_diameter_mm [mm]
+
+    Parameters
+    ----------
+    wavelength_nm : float
+        Laser wavelength lambda0 [nm].
+    power_W : float
+        Power P [W].
+    spot_area_cm2 : float, optional
+        Spot area (or give `beam_diameter_mm`) [cm^2].
+    beam_diameter_mm : float, optional
+        Beam diameter [mm].
+
+    Returns
+    -------
+    Spectrum
+        The line, three samples.
     """
     lam = float(check_range("light.wavelength_nm", wavelength_nm, 0.0, None, low_open=True, unit="nm"))
     P = check_range("light.power_W", power_W, 0.0, None, unit="W")
@@ -664,7 +894,24 @@ def led(peak_nm, fwhm_nm, power_W, spot_area_cm2=None, beam_diameter_mm=None) ->
     241 points over peak +/- 3 FWHM (+/- 7 s; wavelengths <= 0 dropped) and normalised on
     that grid so the trapezoid total is exactly P / area.  Real LED lines are slightly
     asymmetric; the Gaussian is the usual first approximation.
-    peak_nm [nm]; fwhm_nm [nm]; power_W [W]; spot_area_cm2 [cm^2] or beam_diameter_mm [mm]
+
+    Parameters
+    ----------
+    peak_nm : float
+        Peak wavelength [nm].
+    fwhm_nm : float
+        Full width at half maximum [nm].
+    power_W : float
+        Power P [W].
+    spot_area_cm2 : float, optional
+        Spot area (or give `beam_diameter_mm`) [cm^2].
+    beam_diameter_mm : float, optional
+        Beam diameter [mm].
+
+    Returns
+    -------
+    Spectrum
+        The Gaussian line.
     """
     peak = float(check_range("light.peak_nm", peak_nm, 0.0, None, low_open=True, unit="nm"))
     fwhm = float(check_range("light.fwhm_nm", fwhm_nm, 0.0, None, low_open=True, unit="nm"))
@@ -686,13 +933,31 @@ _SCALINGS = _schema.LIGHT_SCALINGS           # ("suns", "irradiance_W_m2", "powe
 
 def scale(spectrum: Spectrum, suns=None, irradiance_W_m2=None, power_W=None, spot_area_cm2=None,
           photon_flux_cm2_s=None, beam_diameter_mm=None) -> Spectrum:
-    """The spectrum's shape rescaled by exactly one of:
+    """The spectrum's shape rescaled by exactly one scaling.
 
-    suns: irradiance in suns, 1 sun = 1000 W m^-2 (module docstring) [-]
-    irradiance_W_m2: total irradiance [W m^-2]
-    power_W: power [W] on spot_area_cm2 [cm^2] (or beam_diameter_mm [mm]), spread evenly
-    photon_flux_cm2_s: total photon flux [cm^-2 s^-1]
     A zero value gives a dark spectrum (valid).
+
+    Parameters
+    ----------
+    spectrum : Spectrum
+        The shape to rescale.
+    suns : float, optional
+        Irradiance in suns, 1 sun = 1000 W m^-2 (module docstring) [-].
+    irradiance_W_m2 : float, optional
+        Total irradiance [W m^-2].
+    power_W : float, optional
+        Power on `spot_area_cm2` (or `beam_diameter_mm`), spread evenly [W].
+    spot_area_cm2 : float, optional
+        Spot area, with `power_W` only [cm^2].
+    photon_flux_cm2_s : float, optional
+        Total photon flux [cm^-2 s^-1].
+    beam_diameter_mm : float, optional
+        Beam diameter, with `power_W` only [mm].
+
+    Returns
+    -------
+    Spectrum
+        The rescaled spectrum.
     """
     given = {k: v for k, v in (("suns", suns), ("irradiance_W_m2", irradiance_W_m2), ("power_W", power_W),
                                ("photon_flux_cm2_s", photon_flux_cm2_s)) if v is not None}
@@ -742,6 +1007,18 @@ def source_from_table(table: dict, base_dir=".") -> Spectrum:
     Other keys: blackbody temperature_K [K], field_of_view_deg [deg] (half-angle, default 90),
     emissivity [-] (default 1); laser wavelength_nm [nm]; led peak_nm, fwhm_nm [nm];
     file path (relative to base_dir).
+
+    Parameters
+    ----------
+    table : dict
+        The [light] table [-].
+    base_dir : str or Path
+        The folder a file source's ``path`` refers to [-].
+
+    Returns
+    -------
+    Spectrum
+        The scaled source.
     """
     table = dict(table)
     for key in table:

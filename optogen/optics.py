@@ -192,12 +192,20 @@ def _need(n, what):
 # ---------------------------------------------------------------------------
 
 class Passes(NamedTuple):
-    """Pass coefficients of a light path; depth profile per unit incident photon flux:
+    """Pass coefficients of a light path.
 
-    g(x) = c alpha [down e^{-c alpha x} + up e^{-c alpha (W - x)}]   [cm^-1]
+    Depth profile per unit incident photon flux:
+    g(x) = c alpha [down e^{-c alpha x} + up e^{-c alpha (W - x)}]   [cm^-1];
     absorptance = down (1 - T) + up (1 - T),  T = e^{-c alpha W}.
-    c: path length per unit depth (1 planar, 2 Lambertian) [-]; down, up: flux entering the
-    downward / upward pass, summed over all round trips [-]; absorptance [-].
+
+    Parameters
+    ----------
+    c : float
+        Path length per unit depth (1 planar, 2 Lambertian) [-].
+    down, up : ndarray
+        Flux entering the downward / upward pass, summed over all round trips [-].
+    absorptance : ndarray
+        Absorptance A [-].
     """
     c: float
     down: np.ndarray
@@ -224,7 +232,7 @@ def path_single(n, rear_R):
 
     References
     ----------
-    A. Beer, Ann. Phys. Chem. 86, 78 (1852).
+    A. Beer, Ann. Phys. Chem. 86, 78 (1852), doi:10.1002/andp.18521620505 (from memory).
     """
     return 1.0, 0.0, 0.0
 
@@ -248,7 +256,8 @@ def path_mirror(n, rear_R):
 
     References
     ----------
-    A. Beer, Ann. Phys. Chem. 86, 78 (1852) (each pass).
+    A. Beer, Ann. Phys. Chem. 86, 78 (1852), doi:10.1002/andp.18521620505 (from memory)
+    (each pass).
     """
     return 1.0, rear_R, 0.0
 
@@ -279,8 +288,9 @@ def path_lambertian_green2002(n, rear_R):
     References
     ----------
     M. A. Green, Prog. Photovolt. 10, 235 (2002), doi:10.1002/pip.404; E. Yablonovitch,
-    J. Opt. Soc. Am. 72, 899 (1982); T. Tiedje, E. Yablonovitch, G. D. Cody and B. G. Brooks,
-    IEEE Trans. Electron Dev. 31, 711 (1984).
+    J. Opt. Soc. Am. 72, 899 (1982), doi:10.1364/JOSA.72.000899 (from memory); T. Tiedje,
+    E. Yablonovitch, G. D. Cody and B. G. Brooks, IEEE Trans. Electron Dev. 31, 711 (1984),
+    doi:10.1109/T-ED.1984.21594 (from memory).
     """
     n = check_range("absorber.refractive_index", n, 1.0, None)
     return 2.0, rear_R, 1.0 - 1.0 / np.asarray(n, float) ** 2
@@ -319,7 +329,7 @@ def light_path_name(light_path: str) -> str:
     return registry.pick("light_path", light_path, _KEY).name
 
 
-def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Passes:
+def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambertian") -> Passes:
     """Pass coefficients and absorptance of a light path; all arrays broadcast.
 
     With T = e^{-c alpha W}, internal front reflectance r_i and rear reflectance R_b:
@@ -335,7 +345,7 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Pa
         Refractive index [-].
     front_R, rear_R : array_like
         Front (external) and rear reflectance [-].
-    path : str
+    light_path : str
         A registered "light_path" model [-].
 
     Returns
@@ -353,7 +363,7 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Pa
         raise InputError("absorber.thickness_um", W * 1e4, "must be > 0 um and finite")
     front_R = check_range(FRONT_FIELD, front_R, 0.0, 1.0)
     rear_R = check_range("optics.rear_reflectance", rear_R, 0.0, 1.0)
-    c, Rb, r_i = registry.pick("light_path", path, _KEY).call(n, rear_R)
+    c, Rb, r_i = registry.pick("light_path", light_path, _KEY).call(n, rear_R)
     tau = c * alpha * W                                   # optical depth of one pass [-]
     T = np.exp(-tau)
     one_minus_T = -np.expm1(-tau)
@@ -364,7 +374,7 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian") -> Pa
     return Passes(c, down, up, (down + up) * one_minus_T)
 
 
-def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian"):
+def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambertian", *, path=None):
     """Absorptance A of the absorber for a light path (see `passes`); broadcasts.
 
     Parameters
@@ -377,8 +387,10 @@ def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian"):
         Refractive index [-].
     front_R, rear_R : array_like
         Front and rear reflectance [-].
-    path : str
+    light_path : str
         "single", "mirror" or "lambertian" (a registered "light_path" model) [-].
+    path : str, optional
+        Former name of `light_path`, kept for callers that pass it by keyword [-].
 
     Returns
     -------
@@ -389,4 +401,6 @@ def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, path="lambertian"):
     ----------
     The chosen light path's (`optogen.registry.models("light_path")`).
     """
-    return passes(alpha_cm1, thickness_cm, n, front_R, rear_R, path).absorptance
+    if path is not None:
+        light_path = path
+    return passes(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path).absorptance

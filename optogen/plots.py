@@ -38,7 +38,20 @@ _ENERGY_LABEL = r"energy above $E_\mathrm{v}$ (eV)"
 
 
 def split_unit(key: str) -> tuple[str, str | None]:
-    """Split a key into (name, unit): "temperature_K" -> ("temperature", "K")."""
+    """Split a key into its name and its unit.
+
+    Parameters
+    ----------
+    key : str
+        A result name or scenario key, e.g. "temperature_K" [-].
+
+    Returns
+    -------
+    name : str
+        The key without its unit suffix, e.g. "temperature" [-].
+    unit : str or None
+        The unit from `UNIT_SUFFIXES`, e.g. "K"; None without a unit suffix [-].
+    """
     for suffix in _SUFFIX_ORDER:
         if key.endswith(suffix) and len(key) > len(suffix):
             return key[: -len(suffix)], UNIT_SUFFIXES[suffix]
@@ -48,8 +61,17 @@ def split_unit(key: str) -> tuple[str, str | None]:
 def key_label(key: str) -> str:
     """A readable label for a dotted scenario key or a result name, from its suffix alone.
 
-    "light.suns" -> "light suns (kW m^-2)"; "absorber.donors_cm3" -> "absorber donors (cm^-3)";
-    "tau_eff_s" -> "tau eff (s)"; "light.photon_count" -> "light: photon count".
+    Parameters
+    ----------
+    key : str
+        A dotted scenario key or a result name [-].
+
+    Returns
+    -------
+    str
+        "light.suns" -> "light suns (kW m^-2)"; "absorber.donors_cm3" -> "absorber donors
+        (cm^-3)"; "tau_eff_s" -> "tau eff (s)"; "light.photon_count" -> "light: photon
+        count" [-].
     """
     name, unit = split_unit(str(key))
     parts = [p.replace("_", " ") for p in name.split(".")]
@@ -62,8 +84,22 @@ _LEGACY = ((r"⁻", "-"), (r"µ|μ", "u"), (r"Ω", "ohm"))
 
 
 def pretty_unit(units: str) -> str:
-    """A units string in the one spelling: caret before every exponent ("cm-3 s-1", "cm^-3 s^-1",
-    "cm^-3 s^-1" -> "cm^-3 s^-1"; "µm" -> "um"); a spelling already right is returned as it is."""
+    """A units string in the one spelling: a caret before every exponent.
+
+    Superscript digits and minus signs become plain ones, an exponent written without a caret
+    gets one ("s-1" -> "s^-1"), "**" becomes "^", "µm" becomes "um" and "Ω" "ohm"; a spelling
+    already right is returned as it is.
+
+    Parameters
+    ----------
+    units : str
+        A units string in any of those spellings [-].
+
+    Returns
+    -------
+    str
+        The caret spelling, e.g. "cm^-3 s^-1" [-].
+    """
     text = str(units)
     sup = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
     text = text.translate(sup)
@@ -78,6 +114,18 @@ def axis_label(name: str, attrs: Mapping | None = None) -> str:
 
     A Dataset variable's own ``long_name`` and ``units`` attributes win; a coordinate's
     ``scenario_key`` finds the table entry of its dotted key.
+
+    Parameters
+    ----------
+    name : str
+        The coordinate or variable name [-].
+    attrs : mapping, optional
+        Its attributes [-].
+
+    Returns
+    -------
+    str
+        "long name (unit)" [-].
     """
     attrs = dict(attrs or {})
     name = str(attrs.get("scenario_key", name))
@@ -134,7 +182,18 @@ def _several_axes(ax, n: int, width: float, height: float, **subplots):
 
 
 def figure_of(obj) -> Figure:
-    """The Figure behind a Figure, an Axes or a sequence of Axes (what the plot functions return)."""
+    """The Figure behind what a plot function returns.
+
+    Parameters
+    ----------
+    obj : Figure, Axes or sequence of Axes
+        A plot function's return value.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure.
+    """
     if isinstance(obj, Figure):
         return obj
     if isinstance(obj, (list, tuple, np.ndarray)):
@@ -204,12 +263,23 @@ _LOG_VARS = {"np_over_ni2", "conductivity_contrast"}
 def sweep_lines(ds, ax=None, panels=None):
     """2x2 panels of implied Voc, tau_eff, Δn and n·p/n_i,eff² over one swept key.
 
-    ds: xarray.Dataset with one swept dimension (named by its dotted scenario key,
-    coordinate attrs "units") and variables implied_voc_V [V], tau_eff_s [s],
-    delta_n_cm3 [cm^-3], np_over_ni2 [1].  A missing variable leaves its panel
-    saying so.  ax: None (a new 2x2 figure), one Axes (draws the first panel, implied Voc,
-    or the first of `panels`) or a sequence of Axes, one per panel; panels: variable names to
-    draw instead of the four.  Returns the Axes (an array of them for several panels).
+    A missing variable leaves its panel saying so.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        One swept dimension (named by its dotted scenario key, coordinate attrs "units") and
+        variables implied_voc_V [V], tau_eff_s [s], delta_n_cm3 [cm^-3], np_over_ni2 [-].
+    ax : Axes or sequence of Axes, optional
+        None (a new 2x2 figure), one Axes (draws the first panel, implied Voc, or the first
+        of `panels`) or a sequence of Axes, one per panel.
+    panels : sequence of str, optional
+        Variable names to draw instead of the four [-].
+
+    Returns
+    -------
+    Axes or ndarray of Axes
+        The Axes (an array of them for several panels).
     """
     ds, dim = _one_dim(ds, "plots.sweep_lines")
     chosen = _LINE_PANELS if panels is None else tuple((v, v in _LOG_VARS or v.endswith(("_cm3", "_s")))
@@ -312,13 +382,29 @@ def sweep_map(ds, var: str = "np_over_ni2", log: bool = True, *, x: str | None =
               second: str | None = "implied_voc_V", ax=None):
     """Filled map with labelled contours of `var` over two swept keys.
 
-    ds: xarray.Dataset with two swept dimensions; var: variable to map
-    (log10 of it when `log`); x: dimension on the horizontal axis (default the
-    first); second: a variable mapped on linear colour in a second panel (None
-    for one panel; dropped if absent or equal to `var`).  Axes with more than two
-    decades of positive coordinates are logarithmic.  ax: None (a new figure), one
-    Axes (the `var` panel only) or two Axes (both panels).  Returns the Axes (an array for
-    two panels); each panel gets a colour bar.
+    Axes with more than two decades of positive coordinates are logarithmic; each panel gets
+    a colour bar.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        Two swept dimensions.
+    var : str
+        Variable to map [-].
+    log : bool
+        Map log10 of `var` [-].
+    x : str, optional
+        Dimension on the horizontal axis (default the first) [-].
+    second : str, optional
+        A variable mapped on linear colour in a second panel (None for one panel; dropped if
+        absent or equal to `var`) [-].
+    ax : Axes or sequence of Axes, optional
+        None (a new figure), one Axes (the `var` panel only) or two Axes (both panels).
+
+    Returns
+    -------
+    Axes or ndarray of Axes
+        The Axes (an array for two panels).
     """
     ds = ds.squeeze(drop=False)
     dims = [d for d in ds[var].dims if ds.sizes[d] > 1] if var in ds else []
@@ -370,12 +456,24 @@ def _mechanism(key: str) -> str:
 def lifetime_curve(delta_n_cm3, tau: Mapping[str, np.ndarray], operating_dn=None, ax=None):
     """Effective lifetime and each mechanism's lifetime against Δn, log-log.
 
-    delta_n_cm3: excess carrier densities [cm^-3]; tau: name -> lifetime [s]
-    over delta_n_cm3 (a key "eff"/"tau_eff_s" is the effective lifetime, drawn
-    bold; others e.g. srh, radiative, auger, surface); operating_dn: Δn of the
-    operating point, marked [cm^-3].  Infinite lifetimes (absent mechanisms) are
-    left out.  ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    Infinite lifetimes (absent mechanisms) are left out.
+
+    Parameters
+    ----------
+    delta_n_cm3 : array_like
+        Excess carrier densities [cm^-3].
+    tau : mapping of str to array_like
+        Name -> lifetime over delta_n_cm3 (a key "eff"/"tau_eff_s" is the effective
+        lifetime, drawn bold; others e.g. srh, radiative, auger, surface) [s].
+    operating_dn : float, optional
+        Δn of the operating point, marked [cm^-3].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     dn = np.asarray(delta_n_cm3, dtype=float)
     fig, ax = _one_axes(ax, 6.4, 4.6)
@@ -438,10 +536,22 @@ def _depth_axis(ax, depth_um: np.ndarray, g: np.ndarray) -> bool:
 def generation_profile(depth_cm, profile_cm3_s, ax=None):
     """Generation rate G(x) against depth (um on the axis), log G.
 
-    depth_cm: depths from the front [cm]; profile_cm3_s: G at those depths
-    [cm^-3 s^-1].  The depth average (trapezoid rule) is drawn dashed.  G more
-    than 15 decades below its peak is off the axis.  ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    The depth average (trapezoid rule) is drawn dashed.  G more than 15 decades below its
+    peak is off the axis.
+
+    Parameters
+    ----------
+    depth_cm : array_like
+        Depths from the front [cm].
+    profile_cm3_s : array_like
+        G at those depths [cm^-3 s^-1].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     d_um = np.asarray(depth_cm, dtype=float) * 1e4
     g = np.asarray(profile_cm3_s, dtype=float)
@@ -469,11 +579,27 @@ def generation_profile(depth_cm, profile_cm3_s, ax=None):
 def implied_jv(voltage_V, current_mA_cm2, vmp=None, jmp=None, voc=None, ff=None, ax=None):
     """Implied J-V curve with power density, the maximum-power point and FF.
 
-    voltage_V: implied voltages [V]; current_mA_cm2: current density, positive
-    for generation [mA cm^-2]; vmp, jmp: maximum-power point [V], [mA cm^-2]
-    (found from the curve when not given); voc: implied Voc [V]; ff: implied fill
-    factor [1].  ax: an Axes to draw into (None:
-    a new figure; power goes on a twin axis at the right).  Returns the current-density Axes.
+    Parameters
+    ----------
+    voltage_V : array_like
+        Implied voltages [V].
+    current_mA_cm2 : array_like
+        Current density, positive for generation [mA cm^-2].
+    vmp : float, optional
+        Maximum-power voltage (found from the curve when not given) [V].
+    jmp : float, optional
+        Maximum-power current density (found from the curve when not given) [mA cm^-2].
+    voc : float, optional
+        Implied Voc [V].
+    ff : float, optional
+        Implied fill factor [-].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure; power goes on a twin axis at the right).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The current-density Axes.
     """
     v = np.asarray(voltage_V, dtype=float)
     j = np.asarray(current_mA_cm2, dtype=float)
@@ -536,11 +662,25 @@ def _spread_labels(positions, min_gap: float) -> np.ndarray:
 def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intrinsic_level_eV=None, ax=None):
     """Flat-band level diagram: Ec, Ev, dark E_F, E_Fn, E_Fp and their splitting.
 
-    All energies are measured upward from the valence band edge Ev [eV]:
-    bandgap_eV is Ec - Ev; fermi_level_eV the dark Fermi level; electron_qfl_eV
-    and hole_qfl_eV the quasi-Fermi levels under light; intrinsic_level_eV the
-    intrinsic level (optional).  ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    All energies are measured upward from the valence band edge Ev.
+
+    Parameters
+    ----------
+    bandgap_eV : float
+        Ec - Ev [eV].
+    fermi_level_eV : float
+        The dark Fermi level [eV].
+    electron_qfl_eV, hole_qfl_eV : float
+        The quasi-Fermi levels under light [eV].
+    intrinsic_level_eV : float, optional
+        The intrinsic level [eV].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     eg = float(np.ravel(bandgap_eV)[0])
     ef = float(np.ravel(fermi_level_eV)[0])
@@ -591,10 +731,19 @@ def band_diagram(bandgap_eV, fermi_level_eV, electron_qfl_eV, hole_qfl_eV, intri
 def detector_densities(ds, ax=None):
     """Dark (dashed) and illuminated (solid) electron and hole densities on one log axis.
 
-    ds: 1-D xarray.Dataset (temperature or power sweep) with n0_cm3, p0_cm3,
-    n_cm3, p_cm3 [cm^-3].  The majority carrier is the one with the larger
-    median dark density.  ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    The majority carrier is the one with the larger median dark density.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D (temperature or power sweep) with n0_cm3, p0_cm3, n_cm3, p_cm3 [cm^-3].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     ds, dim = _one_dim(ds, "plots.detector_densities")
     missing = [v for v in ("n0_cm3", "p0_cm3", "n_cm3", "p_cm3") if v not in ds]
@@ -646,14 +795,24 @@ def _free_height(ax, x, curves, at: float) -> float:
 def detector_generation(ds, crossing=None, ax=None):
     """Thermal against background/optical generation over the sweep, log axis.
 
-    ds: 1-D xarray.Dataset with thermal_generation_cm3_s and any of
-    background_generation_cm3_s, optical_generation_cm3_s [cm^-3 s^-1]; the
-    background-limited span is shaded from `background_limited` when present
-    (background photon noise above all other noise), else where G_bg > G_th;
-    crossing: swept value (e.g. temperature [K]) where the background limit sets
-    in, marked with a vertical line and label (None or NaN: not marked).
-    ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    The background-limited span is shaded from `background_limited` when present
+    (background photon noise above all other noise), else where G_bg > G_th.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D with thermal_generation_cm3_s and any of background_generation_cm3_s,
+        optical_generation_cm3_s [cm^-3 s^-1].
+    crossing : float, optional
+        Swept value where the background limit sets in, marked with a vertical line and
+        label (None or NaN: not marked) [unit of the swept key, e.g. K].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     ds, dim = _one_dim(ds, "plots.detector_generation")
     present = [row for row in _GENERATION_VARS if row[0] in ds]
@@ -692,9 +851,19 @@ def detector_generation(ds, crossing=None, ax=None):
 def detector_contrast(ds, ax=None):
     """Conductivity contrast Δσ/σ0 over the sweep, log axis.
 
-    ds: 1-D xarray.Dataset with conductivity_contrast [1].  The line Δσ = σ0
-    (contrast 1) is drawn dotted.  ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    The line Δσ = σ0 (contrast 1) is drawn dotted.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D with conductivity_contrast [-].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     ds, dim = _one_dim(ds, "plots.detector_contrast")
     if "conductivity_contrast" not in ds:
@@ -769,9 +938,18 @@ def _detector_lines(ds, what, rows, ylabel, title, log=True, aux=(), ax=None):
 def detector_detectivity(ds, ax=None):
     """D* and the background limit D*_BLIP over a detector sweep, log y (1000/T axis for temperature).
 
-    ds: 1-D Dataset with detectivity_cm_Hz05_W and, when a background is set,
-    detectivity_blip_cm_Hz05_W [cm Hz^1/2 W^-1].  ax: an Axes to draw into (None: a new
-    figure).  Returns the Axes.
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D with detectivity_cm_Hz05_W and, when a background is set,
+        detectivity_blip_cm_Hz05_W [cm Hz^(1/2) W^-1].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     ax = _detector_lines(ds, "plots.detector_detectivity",
                           [("detectivity_cm_Hz05_W", "D*", "C0", "-o"),
@@ -782,7 +960,20 @@ def detector_detectivity(ds, ax=None):
 
 
 def detector_responsivity(ds, ax=None):
-    """Signal responsivity over a detector sweep (1000/T axis for temperature).  ds: responsivity_A_W [A/W]."""
+    """Signal responsivity over a detector sweep (1000/T axis for temperature).
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D with responsivity_A_W [A W^-1].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
+    """
     ds1, _ = _one_dim(ds, "plots.detector_responsivity")
     log = "responsivity_A_W" in ds1 and _spans_decades(_positive(ds1["responsivity_A_W"].values), 1.0)
     return _detector_lines(ds, "plots.detector_responsivity", [("responsivity_A_W", "R = I_signal / P_signal",
@@ -791,7 +982,20 @@ def detector_responsivity(ds, ax=None):
 
 
 def detector_nep(ds, ax=None):
-    """Noise-equivalent power over a detector sweep, log y.  ds: noise_equivalent_power_W [W]."""
+    """Noise-equivalent power over a detector sweep, log y.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D with noise_equivalent_power_W [W].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
+    """
     return _detector_lines(ds, "plots.detector_nep", [("noise_equivalent_power_W", "NEP", "C3", "-o")],
                            "noise-equivalent power (W)", "Noise-equivalent power (at detector.bandwidth_Hz)", ax=ax)
 
@@ -804,7 +1008,20 @@ _NOISE_VARS = (("noise_total_A_Hz05", "total", "k", "-"),
 
 
 def detector_noise(ds, ax=None):
-    """Each noise current and the total over a detector sweep, log y.  ds: noise_*_A_Hz05 [A/Hz^1/2]."""
+    """Each noise current and the total over a detector sweep, log y.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D with noise_*_A_Hz05 [A Hz^(-1/2)].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
+    """
     return _detector_lines(ds, "plots.detector_noise", _NOISE_VARS, "noise current (A Hz^(-1/2))", "Noise terms", ax=ax)
 
 
@@ -818,9 +1035,21 @@ def detector_dark_current(ds, ax=None):
     """Dark-current components over a detector sweep, log y, 1000/T axis for temperature.
 
     Photodiode: diffusion J0, depletion-region saturation current, the dark
-    current at the bias and the tunnelling estimate [mA/cm^2].  Photoconductor:
+    current at the bias and the tunnelling estimate [mA cm^-2].  Photoconductor:
     dark, signal and background currents [A].  On the 1000/T axis diffusion
     falls with slope ~Eg, the depletion current with ~Eg/2.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        1-D detector sweep [unit in each variable's name].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     if "j0_thin_base_mA_cm2" in ds:
         return _detector_lines(ds, "plots.detector_dark_current", _DARK_VARS, "current density (mA cm^-2)",
@@ -834,8 +1063,21 @@ def detector_dark_current(ds, ax=None):
 def spectral_response(wavelength_nm, quantum_efficiency, responsivity_A_W, ax=None):
     """Quantum efficiency (left) and responsivity (right) against wavelength for a single point.
 
-    wavelength_nm [nm]; quantum_efficiency [-]; responsivity_A_W [A W^-1]; ax: an Axes
-    (None: a new figure; responsivity on a twin axis).  Returns the Axes.
+    Parameters
+    ----------
+    wavelength_nm : array_like
+        Wavelengths [nm].
+    quantum_efficiency : array_like
+        Quantum efficiency [-].
+    responsivity_A_W : array_like
+        Responsivity [A W^-1].
+    ax : matplotlib.axes.Axes, optional
+        An Axes to draw into (None: a new figure; responsivity on a twin axis).
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+        The Axes.
     """
     wl_um = np.asarray(wavelength_nm, float) * 1e-3
     fig, ax = _one_axes(ax, 6.6, 4.4)
@@ -860,11 +1102,25 @@ def depth_profile(depth_cm, delta_n_cm3, generation_cm3_s, electron_qfl_eV=None,
                   bandgap_eV=None, ax=None):
     """Stacked panels over depth: G(x), Δn(x) and, when given, the quasi-Fermi levels.
 
-    depth_cm: depths from the front [cm]; delta_n_cm3: Δn(x) [cm^-3];
-    generation_cm3_s: G(x) [cm^-3 s^-1]; electron_qfl_eV, hole_qfl_eV: E_Fn(x),
-    E_Fp(x) above Ev [eV]; bandgap_eV: Ec - Ev [eV], drawn as band edges in the
-    level panel when given.  ax: None (a new figure) or a
-    sequence of two or three Axes.  Returns the array of Axes (two or three, sharing depth).
+    Parameters
+    ----------
+    depth_cm : array_like
+        Depths from the front [cm].
+    delta_n_cm3 : array_like
+        Δn(x) [cm^-3].
+    generation_cm3_s : array_like
+        G(x) [cm^-3 s^-1].
+    electron_qfl_eV, hole_qfl_eV : array_like, optional
+        E_Fn(x), E_Fp(x) above Ev [eV].
+    bandgap_eV : float, optional
+        Ec - Ev, drawn as band edges in the level panel when given [eV].
+    ax : sequence of Axes, optional
+        None (a new figure) or a sequence of two or three Axes.
+
+    Returns
+    -------
+    ndarray of Axes
+        Two or three Axes, sharing depth.
     """
     d_um = np.asarray(depth_cm, dtype=float) * 1e4
     dn = np.asarray(delta_n_cm3, dtype=float)
@@ -923,11 +1179,23 @@ def depth_profile(depth_cm, delta_n_cm3, generation_cm3_s, electron_qfl_eV=None,
 # --------------------------------------------------------------------------
 
 def save_figure(fig, path, dpi: int = 130) -> Path:
-    """Write `fig` (a Figure, or the Axes a plot function returned) as PNG to `path` atomically
-    (temporary file in the same directory, then rename).
+    """Write a figure as PNG atomically (temporary file in the same directory, then rename).
 
-    Returns the final path.  An interrupted write never leaves a partial file
-    under the final name.
+    An interrupted write never leaves a partial file under the final name.
+
+    Parameters
+    ----------
+    fig : Figure, Axes or sequence of Axes
+        A Figure, or what a plot function returned.
+    path : str or Path
+        The PNG file [-].
+    dpi : int
+        Resolution [dots per inch].
+
+    Returns
+    -------
+    Path
+        The final path.
     """
     from .report import atomic_path          # the one atomic writer (umask-respecting permissions)
     path = Path(path)

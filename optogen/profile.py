@@ -7,7 +7,7 @@ Solves, for the excess carrier density dn(x) [cm^-3] on 0 <= x <= W,
     D d dn/dx  = Us_front(dn(0))   at x = 0   (flux into the front surface)
    -D d dn/dx  = Us_rear(dn(W))    at x = W   (flux into the rear surface)
 
-with D(dn) [cm^2/s] (e.g. the injection-dependent ambipolar coefficient), U(dn) [cm^-3 s^-1]
+with D(dn) [cm^2 s^-1] (e.g. the injection-dependent ambipolar coefficient), U(dn) [cm^-3 s^-1]
 every bulk mechanism and Us [cm^-2 s^-1] the surface recombination.  The core knows nothing
 about materials: the caller passes callables that return (value, derivative w.r.t. dn).
 
@@ -72,7 +72,7 @@ class ProfileConvergenceWarning(UserWarning):
 # ----------------------------------------------------------------------------- mesh
 
 def _cumulative_density(x, W, lengths):
-    """Integral from 0 to x of the mesh density rho [1] (see `mesh`); x (M,), lengths (K,)."""
+    """Integral from 0 to x of the mesh density rho [-] (see `mesh`); x (M,), lengths (K,)."""
     x = x[:, None]
     two_l = 2.0 * lengths[None, :]
     front = -np.expm1(-x / two_l)
@@ -116,16 +116,23 @@ def mesh(thickness_cm, n_nodes=200, fine_lengths_cm=None, *, wavelength_nm=None,
 
     Parameters
     ----------
-    thickness_cm : absorber thickness W [cm], > 0
-    n_nodes : requested number of nodes [1], >= 3 (more are used if refinement is needed)
-    fine_lengths_cm : characteristic lengths to resolve at the faces [cm], > 0; None = uniform
-    wavelength_nm : wavelengths belonging to `fine_lengths_cm`, only for the message [nm]
-    first_step_fraction : largest allowed first step / shortest length [1]
-    max_nodes : upper limit of automatic refinement [1]
+    thickness_cm : float
+        Absorber thickness W, > 0 [cm].
+    n_nodes : int
+        Requested number of nodes, >= 3 (more are used if refinement is needed) [-].
+    fine_lengths_cm : array_like, optional
+        Characteristic lengths to resolve at the faces, > 0; None = uniform [cm].
+    wavelength_nm : array_like, optional
+        Wavelengths belonging to `fine_lengths_cm`, only for the message [nm].
+    first_step_fraction : float
+        Largest allowed first step / shortest length [-].
+    max_nodes : int
+        Upper limit of automatic refinement [-].
 
     Returns
     -------
-    x_cm : strictly increasing node positions, x[0] = 0, x[-1] = W [cm]
+    x_cm : ndarray
+        Strictly increasing node positions, x[0] = 0, x[-1] = W [cm].
     """
     W = check_range("profile.thickness_cm", thickness_cm, 0.0, None, low_open=True, unit="cm")
     if np.ndim(W) != 0:
@@ -175,14 +182,25 @@ def mesh(thickness_cm, n_nodes=200, fine_lengths_cm=None, *, wavelength_nm=None,
 
 
 def generation_per_volume_cm2_s(x_cm, generation_cm3_s):
-    """Generation integrated over each control volume [cm^-2 s^-1].
+    """Generation integrated over each control volume.
 
     G is interpolated log-linearly between neighbouring nodes (exact for a Beer-Lambert
     exponential, hence for the strongly absorbed light near the front), and linearly on an
     interval where a node value is zero.  With z = ln(G_r/G_l)/2 and g = sqrt(G_l G_r) the
     interpolant's midpoint value, the halves of an interval of width h carry
     (h/2)(g - G_l)/z and (h/2)(G_r - g)/z (series in z for |z| < 1e-3; no overflow).
-    x_cm : mesh nodes (X,) [cm];  generation_cm3_s : nodal G (..., X) [cm^-3 s^-1]
+
+    Parameters
+    ----------
+    x_cm : ndarray
+        Mesh nodes, shape (X,) [cm].
+    generation_cm3_s : ndarray
+        Nodal G, shape (..., X) [cm^-3 s^-1].
+
+    Returns
+    -------
+    ndarray
+        G_i dV_i, shape (..., X) [cm^-2 s^-1].
     """
     h = np.diff(x_cm)
     Gl, Gr = generation_cm3_s[..., :-1], generation_cm3_s[..., 1:]
@@ -205,7 +223,18 @@ def generation_per_volume_cm2_s(x_cm, generation_cm3_s):
 
 
 def control_volumes_cm(x_cm):
-    """Finite-volume widths dV_i (half the neighbouring intervals) of mesh x_cm [cm]."""
+    """Finite-volume widths dV_i (half the neighbouring intervals) of a mesh.
+
+    Parameters
+    ----------
+    x_cm : ndarray
+        Mesh nodes, shape (X,) [cm].
+
+    Returns
+    -------
+    ndarray
+        dV_i, shape (X,) [cm].
+    """
     h = np.diff(x_cm)
     dV = np.zeros_like(x_cm)
     dV[:-1] += 0.5 * h
@@ -218,8 +247,15 @@ def control_volumes_cm(x_cm):
 def linear_bulk(tau_s):
     """Bulk rate U = dn / tau with a constant lifetime.
 
-    tau_s : lifetime [s], > 0 (shape (..., 1) to vary over the batch)
-    Returns a callable dn [cm^-3] -> (U [cm^-3 s^-1], dU/ddn [s^-1]).
+    Parameters
+    ----------
+    tau_s : array_like
+        Lifetime, > 0 (shape (..., 1) to vary over the batch) [s].
+
+    Returns
+    -------
+    callable
+        dn [cm^-3] -> (U [cm^-3 s^-1], dU/ddn [s^-1]).
     """
     tau = check_range("profile.tau_s", tau_s, 0.0, None, low_open=True, unit="s")
     return lambda dn: (dn / tau, 1.0 / tau + 0.0 * dn)
@@ -228,41 +264,72 @@ def linear_bulk(tau_s):
 def constant_diffusion(D_cm2_s):
     """Injection-independent diffusion coefficient D.
 
-    D_cm2_s : diffusion coefficient [cm^2/s], > 0
-    Returns a callable dn [cm^-3] -> (D [cm^2/s], dD/ddn [cm^5/s]).
+    Parameters
+    ----------
+    D_cm2_s : array_like
+        Diffusion coefficient, > 0 [cm^2 s^-1].
+
+    Returns
+    -------
+    callable
+        dn [cm^-3] -> (D [cm^2 s^-1], dD/ddn [cm^5 s^-1]).
     """
-    D = check_range("profile.D_cm2_s", D_cm2_s, 0.0, None, low_open=True, unit="cm^2/s")
+    D = check_range("profile.D_cm2_s", D_cm2_s, 0.0, None, low_open=True, unit="cm^2 s^-1")
     return lambda dn: (D + 0.0 * dn, 0.0 * dn)
 
 
 def surface_S(S_cm_s, field="profile.S_cm_s"):
     """Surface recombination with a constant velocity: Us = S dn.
 
-    S_cm_s : surface recombination velocity [cm/s], >= 0
-    Returns a callable dn [cm^-3] -> (Us [cm^-2 s^-1], dUs/ddn [cm/s]).
+    Parameters
+    ----------
+    S_cm_s : array_like
+        Surface recombination velocity, >= 0 [cm s^-1].
+    field : str
+        The field named in errors [-].
+
+    Returns
+    -------
+    callable
+        dn [cm^-3] -> (Us [cm^-2 s^-1], dUs/ddn [cm s^-1]).
     """
-    S = check_range(field, S_cm_s, 0.0, None, unit="cm/s")
+    S = check_range(field, S_cm_s, 0.0, None, unit="cm s^-1")
     return lambda dn: (S * dn, S + 0.0 * dn)
 
 
 def surface_J0(J0_fA_cm2, n0_cm3, p0_cm3, ni_eff_cm3, field="profile.J0_fA_cm2"):
-    """Surface recombination from a saturation current density (Kane & Swanson 1985):
+    """Surface recombination from a saturation current density (Kane & Swanson 1985).
 
         Us = (J0 / q) (n p - ni_eff^2) / ni_eff^2,   n = n0 + dn, p = p0 + dn
 
-    (D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, 1985, p. 578, from memory).  The law
-    itself is `optogen.recombination.surface_j0_flux_cm2_s` (one definition for the uniform
+    The law itself is `optogen.recombination.surface_j0_flux_cm2_s` (one definition for the uniform
     and the depth-resolved runs); here ni_eff^2 enters as its shift ln(ni_eff^2 / (n0 p0)),
     taken in logarithms.  J0 is the value at the temperature of the run (no reference scaling
     here: `optogen.recombination.j0_at_temperature_fA_cm2` does that).
 
-    J0_fA_cm2 : surface saturation current density at the run temperature [fA/cm^2], >= 0
-    n0_cm3, p0_cm3 : equilibrium electron and hole densities [cm^-3], > 0
-    ni_eff_cm3 : effective intrinsic density [cm^-3], > 0
-    Returns a callable dn [cm^-3] -> (Us [cm^-2 s^-1], dUs/ddn [cm/s]).
+    Parameters
+    ----------
+    J0_fA_cm2 : array_like
+        Surface saturation current density at the run temperature, >= 0 [fA cm^-2].
+    n0_cm3, p0_cm3 : array_like
+        Equilibrium electron and hole densities, > 0 [cm^-3].
+    ni_eff_cm3 : array_like
+        Effective intrinsic density, > 0 [cm^-3].
+    field : str
+        The field named in errors [-].
+
+    Returns
+    -------
+    callable
+        dn [cm^-3] -> (Us [cm^-2 s^-1], dUs/ddn [cm s^-1]).
+
+    References
+    ----------
+    D. E. Kane and R. M. Swanson, Proc. 18th IEEE Photovoltaic Specialists Conference (1985),
+    p. 578 (from memory).
     """
     from .recombination import surface_j0_flux_cm2_s
-    J0 = check_range(field, J0_fA_cm2, 0.0, None, unit="fA/cm^2")
+    J0 = check_range(field, J0_fA_cm2, 0.0, None, unit="fA cm^-2")
     n0 = check_range("profile.n0_cm3", n0_cm3, 0.0, None, low_open=True, unit="cm^-3")
     p0 = check_range("profile.p0_cm3", p0_cm3, 0.0, None, low_open=True, unit="cm^-3")
     ni = check_range("profile.ni_eff_cm3", ni_eff_cm3, 0.0, None, low_open=True, unit="cm^-3")
@@ -274,7 +341,18 @@ def surface_J0(J0_fA_cm2, n0_cm3, p0_cm3, ni_eff_cm3, field="profile.J0_fA_cm2")
 
 
 def add_rates(*terms):
-    """Sum of rate callables: dn -> (sum of values, sum of derivatives) [their units]."""
+    """Sum of rate callables.
+
+    Parameters
+    ----------
+    *terms : callable
+        Each dn [cm^-3] -> (value, derivative) [any one unit].
+
+    Returns
+    -------
+    callable
+        dn -> (sum of values, sum of derivatives) [their units].
+    """
     def rate(dn):
         out = [t(dn) for t in terms]
         return sum(o[0] for o in out), sum(o[1] for o in out)
@@ -286,8 +364,20 @@ def with_derivative(rate, rel_step=1e-7, abs_step_cm3=1.0):
 
     The step is rel_step * dn + abs_step_cm3, so every evaluation has dn >= 0.  Newton only
     needs an approximate Jacobian: the converged residual uses the exact rate.
-    rate : vectorised callable dn [cm^-3] -> value [any unit]
-    rel_step : relative step [1];  abs_step_cm3 : absolute step added [cm^-3]
+
+    Parameters
+    ----------
+    rate : callable
+        Vectorised dn [cm^-3] -> value [any unit].
+    rel_step : float
+        Relative step [-].
+    abs_step_cm3 : float
+        Absolute step added [cm^-3].
+
+    Returns
+    -------
+    callable
+        dn [cm^-3] -> (value [unit of rate], derivative [unit of rate per cm^-3]).
     """
     def wrapped(dn):
         dn = np.asarray(dn, dtype=float)
@@ -303,17 +393,30 @@ def with_derivative(rate, rel_step=1e-7, abs_step_cm3=1.0):
 class ProfileSolution:
     """Depth profile(s) of the excess carrier density and the carrier balance.
 
-    Fields (batch shape (...), X depth nodes):
-    x_cm (X,) node depths [cm]; control_volume_cm (X,) finite-volume widths [cm];
-    delta_n_cm3 (..., X) excess carrier density [cm^-3];
-    generation_cm3_s (..., X) generation rate at the nodes [cm^-3 s^-1];
-    converged (...) bool; iterations (...) Newton steps taken [1];
-    residual (...) sum_i |R_i| / total generation [1] (absolute [cm^-2 s^-1] where G = 0);
-    it can exceed rtol only through the per-volume round-off floor (module docstring);
-    generation_cm2_s, bulk_recombination_cm2_s, front_loss_cm2_s, rear_loss_cm2_s (...)
-    depth-integrated carrier balance terms [cm^-2 s^-1];
-    uniform_delta_n_cm3 (...) the uniform answer for the same average generation, bulk rate
-    and surfaces [cm^-3] (for the "uniform approximation error").
+    Batch shape (...), X depth nodes.
+
+    Parameters
+    ----------
+    x_cm : ndarray
+        Node depths, shape (X,) [cm].
+    control_volume_cm : ndarray
+        Finite-volume widths, shape (X,) [cm].
+    delta_n_cm3 : ndarray
+        Excess carrier density, shape (..., X) [cm^-3].
+    generation_cm3_s : ndarray
+        Generation rate at the nodes, shape (..., X) [cm^-3 s^-1].
+    converged : ndarray of bool
+        Shape (...) [-].
+    iterations : ndarray of int
+        Newton steps taken, shape (...) [-].
+    residual : ndarray
+        sum_i |R_i| / total generation, shape (...) (absolute [cm^-2 s^-1] where G = 0); it
+        can exceed rtol only through the per-volume round-off floor (module docstring) [-].
+    generation_cm2_s, bulk_recombination_cm2_s, front_loss_cm2_s, rear_loss_cm2_s : ndarray
+        Depth-integrated carrier balance terms, shape (...) [cm^-2 s^-1].
+    uniform_delta_n_cm3 : ndarray
+        The uniform answer for the same average generation, bulk rate and surfaces, shape
+        (...) (for the "uniform approximation error") [cm^-3].
     """
     x_cm: np.ndarray
     control_volume_cm: np.ndarray
@@ -334,19 +437,43 @@ class ProfileSolution:
         return float(self.x_cm[-1] - self.x_cm[0])
 
     def average_cm3(self):
-        """Volume-weighted depth average of dn, sum(dn dV)/W [cm^-3]."""
+        """Volume-weighted depth average of dn, sum(dn dV)/W.
+
+        Returns
+        -------
+        ndarray
+            <dn>, shape (...) [cm^-3].
+        """
         return (self.delta_n_cm3 @ self.control_volume_cm) / self.thickness_cm
 
     def front_cm3(self):
-        """dn at the front face x = 0 [cm^-3]."""
+        """dn at the front face x = 0.
+
+        Returns
+        -------
+        ndarray
+            Shape (...) [cm^-3].
+        """
         return self.delta_n_cm3[..., 0]
 
     def rear_cm3(self):
-        """dn at the rear face x = W [cm^-3]."""
+        """dn at the rear face x = W.
+
+        Returns
+        -------
+        ndarray
+            Shape (...) [cm^-3].
+        """
         return self.delta_n_cm3[..., -1]
 
     def uniformity(self):
-        """min(dn) / max(dn) over depth [1] (1 = flat; 1 where dn is zero everywhere)."""
+        """min(dn) / max(dn) over depth.
+
+        Returns
+        -------
+        ndarray
+            Shape (...); 1 = flat, and 1 where dn is zero everywhere [-].
+        """
         hi = self.delta_n_cm3.max(axis=-1)
         lo = self.delta_n_cm3.min(axis=-1)
         return np.divide(lo, hi, out=np.ones_like(hi), where=hi > 0)
@@ -356,16 +483,21 @@ class ProfileSolution:
 
         Parameters
         ----------
-        bulk_rates_cm3_s : mapping mechanism -> U_x at the nodes (..., X) [cm^-3 s^-1]
-            (e.g. srh, radiative, auger); the surfaces are added from the solution's own
-            front and rear losses under the key "surface"
-        tau_eff_fallback_s : tau_eff where no carriers are generated [s]
+        bulk_rates_cm3_s : mapping of str to ndarray
+            Mechanism -> U_x at the nodes, shape (..., X) (e.g. srh, radiative, auger); the
+            surfaces are added from the solution's own front and rear losses under the key
+            "surface" [cm^-3 s^-1].
+        tau_eff_fallback_s : array_like
+            tau_eff where no carriers are generated [s].
 
         Returns
         -------
-        (taus, tau_eff_s, losses): taus a dict mechanism -> tau [s] (inf where a mechanism
-        removes nothing), tau_eff_s = <dn> W / integral(G dx) [s], losses a dict mechanism ->
-        depth-integrated loss [cm^-2 s^-1].
+        taus : dict of str to ndarray
+            Mechanism -> tau (inf where a mechanism removes nothing) [s].
+        tau_eff_s : ndarray
+            <dn> W / integral(G dx) [s].
+        losses : dict of str to ndarray
+            Mechanism -> depth-integrated loss [cm^-2 s^-1].
         """
         losses = {k: np.asarray(v) @ self.control_volume_cm for k, v in bulk_rates_cm3_s.items()}
         losses["surface"] = self.front_loss_cm2_s + self.rear_loss_cm2_s
@@ -376,8 +508,14 @@ class ProfileSolution:
         return taus, tau_eff, losses
 
     def balance(self):
-        """Carrier balance per unit area [cm^-2 s^-1]: dict of generation, bulk_recombination,
-        front_loss, rear_loss and imbalance (= generation - the three losses)."""
+        """Carrier balance per unit area.
+
+        Returns
+        -------
+        dict of str to ndarray
+            generation_cm2_s, bulk_recombination_cm2_s, front_loss_cm2_s, rear_loss_cm2_s and
+            imbalance_cm2_s (= generation - the three losses) [cm^-2 s^-1].
+        """
         return {
             "generation_cm2_s": self.generation_cm2_s,
             "bulk_recombination_cm2_s": self.bulk_recombination_cm2_s,
@@ -388,8 +526,14 @@ class ProfileSolution:
         }
 
     def summary(self):
-        """Scalar-per-profile figures: front/rear/average dn [cm^-3], uniformity [1],
-        uniform-answer dn [cm^-3], converged, iterations, residual [1]."""
+        """Scalar-per-profile figures.
+
+        Returns
+        -------
+        dict of str to ndarray
+            Front/rear/average dn [cm^-3], uniformity [-], uniform-answer dn [cm^-3],
+            converged [-], iterations [-], residual [-].
+        """
         return {
             "delta_n_front_cm3": self.front_cm3(),
             "delta_n_rear_cm3": self.rear_cm3(),
@@ -404,7 +548,15 @@ class ProfileSolution:
     def to_dataarray(self, batch_dims=None):
         """dn as an xarray.DataArray over ("...batch dims", "depth_um"), units in attrs.
 
-        batch_dims : names of the leading dimensions (default "batch" or "batch_0", ...).
+        Parameters
+        ----------
+        batch_dims : sequence of str, optional
+            Names of the leading dimensions (default "batch" or "batch_0", ...) [-].
+
+        Returns
+        -------
+        xarray.DataArray
+            delta_n_cm3 [cm^-3] with a depth_um coordinate [um].
         """
         import xarray as xr
 
@@ -571,20 +723,29 @@ def solve_profile(x_cm, generation_cm3_s, bulk, diffusion, front, rear, *, dn_gu
 
     Parameters
     ----------
-    x_cm : mesh nodes, strictly increasing, x[0] = 0, x[-1] = W [cm] (see `mesh`)
-    generation_cm3_s : generation rate at the nodes, shape (..., X), >= 0 [cm^-3 s^-1]
-    bulk : dn [cm^-3] -> (U [cm^-3 s^-1], dU/ddn [s^-1]), vectorised, U(0) = 0, rising
-    diffusion : dn [cm^-3] -> (D [cm^2/s] > 0, dD/ddn [cm^5/s])
-    front, rear : dn at the face, shape (..., 1) [cm^-3] -> (flux into the surface
-        [cm^-2 s^-1], d flux/ddn [cm/s])
-    dn_guess : starting profile, broadcastable to (..., X) [cm^-3]; default the uniform answer
-    rtol : tolerance on sum_i |R_i| relative to the total generation [1]
-    max_iter : Newton iteration limit [1]
+    x_cm : array_like
+        Mesh nodes, strictly increasing, x[0] = 0, x[-1] = W (see `mesh`) [cm].
+    generation_cm3_s : array_like
+        Generation rate at the nodes, shape (..., X), >= 0 [cm^-3 s^-1].
+    bulk : callable
+        dn [cm^-3] -> (U [cm^-3 s^-1], dU/ddn [s^-1]), vectorised, U(0) = 0, rising.
+    diffusion : callable
+        dn [cm^-3] -> (D [cm^2 s^-1] > 0, dD/ddn [cm^5 s^-1]).
+    front, rear : callable
+        dn at the face, shape (..., 1) [cm^-3] -> (flux into the surface [cm^-2 s^-1],
+        d flux/ddn [cm s^-1]).
+    dn_guess : array_like, optional
+        Starting profile, broadcastable to (..., X); default the uniform answer [cm^-3].
+    rtol : float
+        Tolerance on sum_i |R_i| relative to the total generation [-].
+    max_iter : int
+        Newton iteration limit [-].
 
     Returns
     -------
-    ProfileSolution.  Profiles that do not converge are flagged (converged False, their
-    residual reported) and a ProfileConvergenceWarning gives the count and worst residual.
+    ProfileSolution
+        Profiles that do not converge are flagged (converged False, their residual reported)
+        and a ProfileConvergenceWarning gives the count and worst residual.
     """
     x = _check_mesh(x_cm)
     G = np.asarray(generation_cm3_s, dtype=float)
@@ -629,7 +790,7 @@ def solve_profile(x_cm, generation_cm3_s, bulk, diffusion, front, rear, *, dn_gu
                                            "Sr": "rear"}[name], "non-finite output",
                              "finite rates for the starting profile")
     if np.any(ev["D"] <= 0):
-        raise InputError("profile.diffusion", float(ev["D"].min()), "D > 0 cm^2/s")
+        raise InputError("profile.diffusion", float(ev["D"].min()), "D > 0 cm^2 s^-1")
 
     def measures(e):
         """(local residual above the floor, |balance|), both relative to the generation."""

@@ -30,13 +30,22 @@ MAX_POINTS_WITHOUT_CONFIRMATION = 2_000_000
 
 @dataclass(frozen=True)
 class SweepAxis:
-    """One swept key and its values."""
+    """One swept key and its values.
+
+    Parameters
+    ----------
+    key : str
+        The dotted scenario key, e.g. "light.suns" [-].
+    values : ndarray
+        Its values, 1-D [unit of the key].
+    """
 
     key: str
     values: np.ndarray
 
     @property
     def unit(self) -> str:
+        """The unit of the key, from its suffix (`unit_of`) [-]."""
         return unit_of(self.key)
 
 
@@ -45,6 +54,19 @@ class Scenario:
     """A validated scenario: the parsed table, its source text and its folder.
 
     ``data`` never contains the ``[sweep]`` section; sweeps live in ``sweep``.
+
+    Parameters
+    ----------
+    data : mapping
+        The scenario's nested tables, without [sweep] [-].
+    text : str
+        The TOML source text ("" for a table given as a dict) [-].
+    base_dir : Path
+        The folder that relative file names in the scenario refer to [-].
+    sweep : tuple of SweepAxis
+        The swept keys, outer product in this order [-].
+    path : str
+        The file read, or "<text>" [-].
     """
 
     data: Mapping[str, Any]
@@ -55,10 +77,25 @@ class Scenario:
 
     @property
     def title(self) -> str:
+        """The scenario's title (the file's stem when it has none) [-]."""
         return str(self.data.get("title", Path(self.path).stem))
 
     def get(self, dotted: str, default=None):
-        """The value at a dotted key such as "light.suns", or `default`."""
+        """The value at a dotted key.
+
+        Parameters
+        ----------
+        dotted : str
+            A dotted key such as "light.suns"; list indices as numbers
+            ("recombination.defects.0.density_cm3") [-].
+        default : object, optional
+            Returned when the key is absent [-].
+
+        Returns
+        -------
+        object
+            The value [unit of the key], or `default`.
+        """
         node: Any = self.data
         for part in dotted.split("."):
             if isinstance(node, list) and part.isdigit() and int(part) < len(node):
@@ -70,14 +107,38 @@ class Scenario:
         return node
 
     def section(self, name: str) -> dict:
-        """A copy of a section table ({} if absent)."""
+        """A copy of a section table.
+
+        Parameters
+        ----------
+        name : str
+            The section, e.g. "absorber" [-].
+
+        Returns
+        -------
+        dict
+            A deep copy of the table ({} if absent) [-].
+        """
         return copy.deepcopy(dict(self.data.get(name, {}) or {}))
 
     def with_values(self, overrides: Mapping[str, Any] | None = None, **kw) -> "Scenario":
         """A copy with fields replaced by dotted key.
 
         ``scenario.with_values({"light.suns": 0.1})`` or, as keywords with "__"
-        for the dot, ``scenario.with_values(light__suns=0.1)``.
+        for the dot, ``scenario.with_values(light__suns=0.1)``.  A fixed value replaces a
+        sweep of the same key.
+
+        Parameters
+        ----------
+        overrides : mapping, optional
+            Dotted key -> value [unit of the key].
+        **kw
+            More overrides, "__" for the dot [unit of the key].
+
+        Returns
+        -------
+        Scenario
+            The validated copy.
         """
         items = dict(overrides or {})
         items.update({k.replace("__", "."): v for k, v in kw.items()})
@@ -93,6 +154,7 @@ class Scenario:
 
     @property
     def n_points(self) -> int:
+        """The number of operating points (product of the sweep sizes; 1 without a sweep) [-]."""
         return int(np.prod([a.values.size for a in self.sweep])) if self.sweep else 1
 
     def to_toml(self) -> str:
@@ -100,6 +162,11 @@ class Scenario:
 
         Every field of `data` and the sweep axes as explicit value lists, so that
         ``load_scenario(sc.to_toml(), base_dir=sc.base_dir)`` gives the same scenario.
+
+        Returns
+        -------
+        str
+            TOML text [-].
         """
         data = {k: v for k, v in self.data.items() if k in ("title", "description")}
         data.update({k: v for k, v in self.data.items() if k not in ("title", "description")})
@@ -124,10 +191,20 @@ class Scenario:
 
 
 def unit_of(key: str) -> str:
-    """The unit encoded in a key's suffix ("absorber.temperature_K" -> "K", "delta_n_cm3" -> "cm^-3").
+    """The unit encoded in a key's suffix.
 
-    Works on dotted scenario keys and on Dataset names ("light_suns" -> "kW m^-2"); "1" for a
-    name without a unit suffix (a dimensionless quantity).
+    Works on dotted scenario keys and on Dataset names ("light_suns" -> "kW m^-2").
+
+    Parameters
+    ----------
+    key : str
+        A dotted scenario key or a Dataset name [-].
+
+    Returns
+    -------
+    str
+        The unit from `UNIT_SUFFIXES` ("absorber.temperature_K" -> "K", "delta_n_cm3" ->
+        "cm^-3"); "1" for a name without a unit suffix (a dimensionless quantity) [-].
     """
     name = key.split(".")[-1]
     for suffix in _SUFFIX_ORDER:
@@ -159,10 +236,24 @@ HALF_POWER_UNITS = ("A Hz^(-1/2)", "cm Hz^(1/2) W^-1")
 
 
 def dim_name(key: str) -> str:
-    """The Dataset / NetCDF name of a swept key: dots become underscores ("light.suns" -> "light_suns").
+    """The Dataset / NetCDF name of a swept key: dots become underscores.
 
     CF names hold letters, digits and underscores only (CF 1.10 section 2.3); the dotted key is
     kept in the coordinate's ``scenario_key`` attribute.
+
+    Parameters
+    ----------
+    key : str
+        A dotted scenario key, e.g. "light.suns" [-].
+
+    Returns
+    -------
+    str
+        The dimension name, e.g. "light_suns" [-].
+
+    References
+    ----------
+    NetCDF Climate and Forecast (CF) Metadata Conventions, version 1.10, section 2.3.
     """
     return str(key).replace(".", "_")
 
@@ -250,9 +341,17 @@ LONG_NAMES: dict[str, str] = {
 def long_name(name: str) -> str:
     """The human name of a Dataset variable, coordinate or dotted key, without its unit.
 
-    From `LONG_NAMES` (a dotted key is also found by its underscore name); otherwise the name
-    with its unit suffix dropped and underscores as spaces ("absorber.donors_cm3" ->
-    "absorber donors").
+    Parameters
+    ----------
+    name : str
+        A Dataset name or a dotted scenario key [-].
+
+    Returns
+    -------
+    str
+        From `LONG_NAMES` (a dotted key is also found by its underscore name); otherwise the
+        name with its unit suffix dropped and underscores as spaces ("absorber.donors_cm3" ->
+        "absorber donors") [-].
     """
     name = str(name)
     if name in LONG_NAMES:
@@ -269,7 +368,20 @@ def long_name(name: str) -> str:
 
 
 def label(name: str, units: str | None = None) -> str:
-    """"long name (unit)" for axes and tables; the unit from `units` or the name's suffix (none if "1")."""
+    """A label "long name (unit)" for axes and tables.
+
+    Parameters
+    ----------
+    name : str
+        A Dataset name or a dotted scenario key [-].
+    units : str, optional
+        The unit (default: from the name's suffix, `unit_of`) [-].
+
+    Returns
+    -------
+    str
+        "long name (unit)", or the long name alone for a unit "1" or "" [-].
+    """
     units = unit_of(name) if units is None else str(units)
     return f"{long_name(name)} ({units})" if units not in ("1", "") else long_name(name)
 
@@ -330,8 +442,21 @@ def _toml_value(v) -> str:
 
 
 def toml_text(data: Mapping[str, Any]) -> str:
-    """TOML text of a table as tomllib returns it (tables, arrays of tables, strings, numbers,
-    booleans, lists); ``tomllib.loads(toml_text(d)) == d`` for such a table."""
+    """TOML text of a table as tomllib returns it.
+
+    Tables, arrays of tables, strings, numbers, booleans, lists;
+    ``tomllib.loads(toml_text(d)) == d`` for such a table.
+
+    Parameters
+    ----------
+    data : mapping
+        The nested tables [-].
+
+    Returns
+    -------
+    str
+        TOML text [-].
+    """
     lines: list[str] = []
 
     def is_table_list(v):
@@ -378,7 +503,18 @@ def _set_dotted(data: dict, key: str, value) -> None:
 
 
 def parse_value(text: str):
-    """A --set value: TOML syntax if it parses (numbers, booleans, lists), else a string."""
+    """A --set value: TOML syntax if it parses (numbers, booleans, lists), else a string.
+
+    Parameters
+    ----------
+    text : str
+        The text after "=" in ``--set key=value`` [-].
+
+    Returns
+    -------
+    object
+        The parsed TOML value, or `text` itself [-].
+    """
     try:
         return tomllib.loads(f"v = {text}")["v"]
     except tomllib.TOMLDecodeError:
@@ -386,8 +522,21 @@ def parse_value(text: str):
 
 
 def validate(data: Mapping[str, Any]) -> None:
-    """Check a scenario table (without [sweep]) against the schema: section and key names,
-    kinds, ranges, choices and the rules between keys (`optogen.schema.validate`)."""
+    """Check a scenario table (without [sweep]) against the schema.
+
+    Section and key names, kinds, ranges, choices and the rules between keys
+    (`optogen.schema.validate`).
+
+    Parameters
+    ----------
+    data : mapping
+        A scenario's nested tables [-].
+
+    Raises
+    ------
+    InputError
+        Naming the first bad field.
+    """
     schema.validate(data)
 
 
@@ -425,6 +574,19 @@ def sweep_axes(table: Mapping[str, Any], data: Mapping[str, Any]) -> tuple[Sweep
     Every value is checked against the schema; the grid size is checked against
     `schema.MAX_POINTS` and the number of slow-key groups against
     `schema.MAX_SLOW_GROUPS` before any array is built.
+
+    Parameters
+    ----------
+    table : mapping
+        The [sweep] table: dotted key -> a list of values, ``{log = [a, b], points = N}`` or
+        ``{linear = [a, b], points = N}`` [unit of the key].
+    data : mapping
+        The rest of the scenario, to validate the swept values against the rules between keys [-].
+
+    Returns
+    -------
+    tuple of SweepAxis
+        One axis per swept key, in the table's order.
     """
     if not isinstance(table, Mapping):
         raise InputError("sweep", table, "a table of dotted keys")
@@ -472,10 +634,20 @@ def _numeric_keys(data, prefix=""):
 def load_scenario(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None) -> Scenario:
     """Read a scenario from a path, from TOML text or from an already parsed table.
 
-    source: a path to a .toml file, the TOML text itself, or a dict as tomllib returns it [-]
-    overrides: dotted-key values applied on top (as ``--set``) [-]
-    base_dir: folder that relative paths in a text or dict scenario refer to (default: the
-        current folder; a file's own folder for a path) [-]
+    Parameters
+    ----------
+    source : str, Path or mapping
+        A path to a .toml file, the TOML text itself, or a dict as tomllib returns it [-].
+    overrides : mapping, optional
+        Dotted-key values applied on top (as ``--set``) [unit of the key].
+    base_dir : str or Path, optional
+        Folder that relative paths in a text or dict scenario refer to (default: the
+        current folder; a file's own folder for a path) [-].
+
+    Returns
+    -------
+    Scenario
+        The validated scenario.
     """
     path = "<text>"
     base = Path(base_dir) if base_dir is not None else Path.cwd()
@@ -540,7 +712,19 @@ def _probe_axes(data, axes) -> None:
 
 
 def is_number(x) -> bool:
-    """True for a finite int or float (not a bool; an int too large for a float is not a number)."""
+    """Whether a value is a finite number.
+
+    Parameters
+    ----------
+    x : object
+        Any value [-].
+
+    Returns
+    -------
+    bool
+        True for a finite int or float (not a bool; an int too large for a float is not a
+        number) [-].
+    """
     if isinstance(x, (bool, np.bool_)) or not isinstance(x, (int, float, np.integer, np.floating)):
         return False
     try:

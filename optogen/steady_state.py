@@ -45,7 +45,7 @@ _X_MAX = float(np.log(DN_MAX_CM3))
 # Root finding on x = ln(Delta n): f(x) = ln U(e^x) - ln G
 # ---------------------------------------------------------------------------
 
-def _f(prep: PreparedRates, x, lg, bgn=True):
+def _balance(prep: PreparedRates, x, lg, bgn=True):
     """ln U(e^x) - ln G [-]; -inf where U is not a positive finite number.
 
     bgn: with the injection-dependent narrowing (False: n_i,eff fixed at its dark value;
@@ -75,14 +75,14 @@ def _bracket(prep, lg, x0, f0, bgn, step0):
         k = np.flatnonzero(need_hi)
         if k.size:
             xn = np.minimum(b[k] + step[k], _X_MAX)
-            fn = _f(prep.take(k), xn, lg[k], bgn)
+            fn = _balance(prep.take(k), xn, lg[k], bgn)
             a[k], fa[k] = b[k], fb[k]               # the old upper end had f < 0
             b[k], fb[k] = xn, fn
             need_hi[k] = ~(fn >= 0) & (xn < _X_MAX)
         k = np.flatnonzero(need_lo)
         if k.size:
             xn = np.maximum(a[k] - step[k], _X_MIN)
-            fn = _f(prep.take(k), xn, lg[k], bgn)
+            fn = _balance(prep.take(k), xn, lg[k], bgn)
             b[k], fb[k] = a[k], fa[k]               # the old lower end had f > 0
             a[k], fa[k] = xn, fn
             need_lo[k] = (fn > 0) & (xn > _X_MIN)
@@ -111,7 +111,7 @@ def _illinois(prep, lg, a, fa, b, fb, ok, bgn):
             x = (A * FB - B * FA) / (FB - FA)
             bad = ~np.isfinite(x) | (x <= np.minimum(A, B)) | (x >= np.maximum(A, B))
         x = np.where(bad, 0.5 * (A + B), x)
-        fx = _f(cur, x, lg[act], bgn)
+        fx = _balance(cur, x, lg[act], bgn)
         better = np.abs(fx) < best_f[act]
         best_x[act[better]], best_f[act[better]] = x[better], np.abs(fx[better])
         lo = ~(fx >= 0)
@@ -162,10 +162,10 @@ def _solve_flat(prep: PreparedRates, G):
         u0 = sum(sub.rates(d0, 0.0))
         x0 = np.log(d0) - np.log(u0) + lg
     x0 = np.clip(np.where(np.isfinite(x0), x0, _X_MIN), _X_MIN, _X_MAX)
-    a, fa, b, fb, ok = _bracket(sub, lg, x0, _f(sub, x0, lg, False), False, 1.0)
+    a, fa, b, fb, ok = _bracket(sub, lg, x0, _balance(sub, x0, lg, False), False, 1.0)
     x, _ = _illinois(sub, lg, a, fa, b, fb, ok, False)
     if sub.inj_bgn:
-        a, fa, b, fb, ok = _bracket(sub, lg, x, _f(sub, x, lg, True), True, 0.05)
+        a, fa, b, fb, ok = _bracket(sub, lg, x, _balance(sub, x, lg, True), True, 0.05)
         x, _ = _illinois(sub, lg, a, fa, b, fb, ok, True)
     dn[ids] = np.exp(x)
     with np.errstate(over="ignore", invalid="ignore"):
@@ -1431,7 +1431,7 @@ def _thickness_flat(thickness_cm, shape, idx):
     return np.full(idx.size, float(t)) if t.ndim == 0 else np.broadcast_to(t, shape)[np.unravel_index(idx, shape)]
 
 
-def solve_chunked(material, recombination: Recombination, temperature_K, donors_cm3, acceptors_cm3,
+def solve_chunked(material, recombination: Recombination, T_K, donors_cm3, acceptors_cm3,
                   generation_cm3_s, thickness_cm, *, chunk_size: int = _CHUNK,
                   fields_out=("delta_n_cm3", "implied_voc_V", "tau_eff_s", "converged"),
                   equilibrium_kwargs=None, progress=None) -> dict:
@@ -1443,7 +1443,7 @@ def solve_chunked(material, recombination: Recombination, temperature_K, donors_
         The absorber.
     recombination : Recombination
         The mechanisms.
-    temperature_K : array_like
+    T_K : array_like
         Temperature [K].
     donors_cm3, acceptors_cm3 : array_like
         Dopant densities [cm^-3].
@@ -1466,7 +1466,7 @@ def solve_chunked(material, recombination: Recombination, temperature_K, donors_
         Field name -> array of the broadcast shape (implied_ff is not computed).
     """
     from .equilibrium import equilibrium
-    args = [np.asarray(a, dtype=float) for a in (temperature_K, donors_cm3, acceptors_cm3, generation_cm3_s,
+    args = [np.asarray(a, dtype=float) for a in (T_K, donors_cm3, acceptors_cm3, generation_cm3_s,
                                                  thickness_cm)]
     shape = np.broadcast_shapes(*(a.shape for a in args))
     size = int(np.prod(shape))

@@ -41,15 +41,30 @@ ALIASES = {"In0.53Ga0.47As": "InGaAs", "Ga0.47In0.53As": "InGaAs", "GaInAs": "In
 
 
 def names() -> list[str]:
-    """Names of the built-in materials."""
+    """Names of the built-in materials.
+
+    Returns
+    -------
+    list of str
+        Sorted names, "HgCdTe" included [-].
+    """
     return sorted(BUILTIN) + (["HgCdTe"] if "HgCdTe" not in BUILTIN else [])
 
 
 def get(name: str, composition_x: float | None = None) -> Material:
     """A built-in material by name (case- and separator-insensitive; aliases such as "In0.53Ga0.47As").
 
-    name: e.g. "Si", "GaAs", "InGaAs", "HgCdTe" [-]
-    composition_x: Cd fraction for HgCdTe, required there and rejected elsewhere [-]
+    Parameters
+    ----------
+    name : str
+        E.g. "Si", "GaAs", "InGaAs", "HgCdTe" [-].
+    composition_x : float, optional
+        Cd fraction for HgCdTe, required there and rejected elsewhere [-].
+
+    Returns
+    -------
+    Material
+        The built-in record.
     """
     canon = {normalise(k): k for k in names()}
     canon.update({normalise(a): k for a, k in ALIASES.items()})

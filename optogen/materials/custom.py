@@ -75,11 +75,26 @@ def _page_tuple(path: str, value) -> tuple[str, str, str] | None:
 
 
 def validate(material: Material, prefix: str = _PREFIX) -> Material:
-    """Check a material record for physically impossible values; returns it unchanged.
+    """Check a material record for physically impossible values.
 
-    Raises InputError naming "<prefix>.<field>" for negative masses,
-    permittivity <= 0, a refractive index below 1, negative rate
-    coefficients, unknown model names, a bad dopant or mobility record.
+    Parameters
+    ----------
+    material : Material
+        The record.
+    prefix : str
+        The scenario path of the record, named in errors [-].
+
+    Returns
+    -------
+    Material
+        `material`, unchanged.
+
+    Raises
+    ------
+    InputError
+        Naming "<prefix>.<field>" for negative masses, permittivity <= 0, a refractive index
+        below 1, negative rate coefficients, unknown model names, a bad dopant or mobility
+        record.
     """
     for name, (low, low_open, high) in _BOUNDS.items():
         check_range(f"{prefix}.{name}", getattr(material, name), low, high, low_open=low_open)
@@ -121,17 +136,28 @@ def validate(material: Material, prefix: str = _PREFIX) -> Material:
 def material_from_table(table: Mapping, base: Material | None = None) -> Material:
     """A custom Material from a scenario's ``[absorber.custom]`` table.
 
-    table: keys are Material field names; ``dopants`` is a list of tables
+    Parameters
+    ----------
+    table : mapping
+        Keys are Material field names; ``dopants`` is a list of tables
         (name, kind, energy_eV, degeneracy[, source]); ``mobility_e`` and
         ``mobility_h`` are tables of CaugheyThomas fields; ``optical_page`` is
-        "shelf/book/page"; ``sources`` a table field -> citation.
-    base: a built-in to tweak (e.g. from ``material = "GaAs"``); without it
-        every field without a default is required.  Changing composition_x of
-        an HgCdTe base rebuilds its composition-dependent fields first.
+        "shelf/book/page"; ``sources`` a table field -> citation [unit in each key].
+    base : Material, optional
+        A built-in to tweak (e.g. from ``material = "GaAs"``); without it every field without
+        a default is required.  Changing composition_x of an HgCdTe base rebuilds its
+        composition-dependent fields first.
 
-    Unknown keys raise InputError with a did-you-mean hint; missing required
-    fields raise one InputError naming them all; impossible values raise
-    InputError naming the field (see `validate`).
+    Returns
+    -------
+    Material
+        The validated record.
+
+    Raises
+    ------
+    InputError
+        Unknown keys (with a did-you-mean hint); missing required fields (one error naming
+        them all); impossible values (naming the field, see `validate`).
     """
     _check_keys(_PREFIX, table, list(_FIELDS))
     values = dict(table)

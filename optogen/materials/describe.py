@@ -11,10 +11,10 @@ from .custom import _CT_KEYS
 
 
 _UNITS = {
-    "eg0_eV": "eV", "varshni_alpha_eV_K": "eV/K", "varshni_beta_K": "K", "me_dos_m0": "m0", "mh_dos_m0": "m0",
-    "permittivity": "-", "vth_e_300K_cm_s": "cm/s", "vth_h_300K_cm_s": "cm/s", "radiative_B_cm3_s": "cm^3/s",
-    "auger_Cn_cm6_s": "cm^6/s", "auger_Cp_cm6_s": "cm^6/s", "refractive_index": "-",
-    "edge_A_cm1_eV05": "cm^-1 eV^-1/2", "urbach_eV": "eV", "composition_x": "-", "kane_Ep_eV": "eV",
+    "eg0_eV": "eV", "varshni_alpha_eV_K": "eV K^-1", "varshni_beta_K": "K", "me_dos_m0": "m0", "mh_dos_m0": "m0",
+    "permittivity": "-", "vth_e_300K_cm_s": "cm s^-1", "vth_h_300K_cm_s": "cm s^-1", "radiative_B_cm3_s": "cm^3 s^-1",
+    "auger_Cn_cm6_s": "cm^6 s^-1", "auger_Cp_cm6_s": "cm^6 s^-1", "refractive_index": "-",
+    "edge_A_cm1_eV05": "cm^-1 eV^(-1/2)", "urbach_eV": "eV", "composition_x": "-", "kane_Ep_eV": "eV",
     "spin_orbit_eV": "eV", "kane_F": "-", "m_lh_m0": "m0", "auger_F1F2": "-", "auger_gamma": "-",
 }
 
@@ -32,7 +32,20 @@ _NOTES = {
 
 
 def describe(material: Material, T_K: float = 300.0) -> list[dict]:
-    """Rows dict(field, value, unit, source) describing `material` at T_K [K] (for the CLI)."""
+    """Rows describing `material` at a temperature (for the CLI).
+
+    Parameters
+    ----------
+    material : Material
+        The record.
+    T_K : float
+        Temperature [K].
+
+    Returns
+    -------
+    list of dict
+        One dict(field, value, unit, source) per row [unit in each row].
+    """
     T = float(check_range("temperature_K", T_K, 0.0, None, low_open=True, unit="K"))
     src = material.sources
     rows = []
@@ -50,13 +63,13 @@ def describe(material: Material, T_K: float = 300.0) -> list[dict]:
     if material.mass_model != "constant":
         row("me_dos_m0", float(material.electron_mass_m0(T)), "m0", f"at {T:g} K; " + src.get("me_dos_m0", ""))
     ve, vh = material.vth_cm_s(T)
-    row("vth_e_cm_s", float(ve), "cm/s", f"at {T:g} K; " + src.get("vth_e_300K_cm_s", ""))
-    row("vth_h_cm_s", float(vh), "cm/s", f"at {T:g} K; " + src.get("vth_h_300K_cm_s", ""))
-    row("radiative_B_cm3_s", float(material.radiative_coefficient_cm3_s(T)), "cm^3/s",
+    row("vth_e_cm_s", float(ve), "cm s^-1", f"at {T:g} K; " + src.get("vth_e_300K_cm_s", ""))
+    row("vth_h_cm_s", float(vh), "cm s^-1", f"at {T:g} K; " + src.get("vth_h_300K_cm_s", ""))
+    row("radiative_B_cm3_s", float(material.radiative_coefficient_cm3_s(T)), "cm^3 s^-1",
         f"at {T:g} K ({material.radiative_model}); " + src.get("radiative_B_cm3_s", ""))
     cn, cp = material.auger_coefficients_cm6_s(T)
-    row("auger_Cn_cm6_s", float(cn), "cm^6/s", f"at {T:g} K ({material.auger_model}); " + src.get("auger_Cn_cm6_s", ""))
-    row("auger_Cp_cm6_s", float(cp), "cm^6/s", f"at {T:g} K ({material.auger_model}); " + src.get("auger_Cp_cm6_s", ""))
+    row("auger_Cn_cm6_s", float(cn), "cm^6 s^-1", f"at {T:g} K ({material.auger_model}); " + src.get("auger_Cn_cm6_s", ""))
+    row("auger_Cp_cm6_s", float(cp), "cm^6 s^-1", f"at {T:g} K ({material.auger_model}); " + src.get("auger_Cp_cm6_s", ""))
     shown = {"radiative_B_cm3_s", "auger_Cn_cm6_s", "auger_Cp_cm6_s", "vth_e_300K_cm_s", "vth_h_300K_cm_s",
              "dopants", "mobility_e", "mobility_h", "sources", "name", "optical_page"}
     if material.mass_model != "constant":
@@ -79,7 +92,7 @@ def describe(material: Material, T_K: float = 300.0) -> list[dict]:
         if ct is not None:
             for k in _CT_KEYS:
                 row(f"{which}.{k}", float(getattr(ct, k)),
-                    {"mu_min_cm2_Vs": "cm^2/Vs", "mu_max_cm2_Vs": "cm^2/Vs", "n_ref_cm3": "cm^-3"}.get(k, "-"),
+                    {"mu_min_cm2_Vs": "cm^2 V^-1 s^-1", "mu_max_cm2_Vs": "cm^2 V^-1 s^-1", "n_ref_cm3": "cm^-3"}.get(k, "-"),
                     src.get(which, ""))
     page = "/".join(material.optical_page) if material.optical_page else "parametric edge"
     row("optical_page", page, "-", src.get("optical_page", ""))

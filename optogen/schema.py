@@ -68,21 +68,38 @@ NUMBER, INTEGER, BOOL, STRING, TABLE, LIST, FALSE = "number", "integer", "bool",
 class Key:
     """One scenario key.
 
-    path: dotted path, ``*`` for the index inside a list of tables [-]
-    kinds: accepted value kinds: "number", "integer", "bool", "string", "table", "list",
-        "false" (the literal false) [-]
-    unit: unit of a number ("-" dimensionless, "" not a number) [-]
-    default: the value used when the key is absent (None: none / required / see doc) [-]
-    low, high, low_open, high_open: range of a number (None: unbounded) [unit]
-    allow_inf: +inf accepted as "none" (e.g. a Caughey-Thomas n_ref_cm3) [-]
-    choices: allowed strings (compared case-insensitively, "-"/" " as "_") [-]
-    pattern: regular expression a string must match (with its meaning in `doc`) [-]
-    max_items: longest list of tables (a resource ceiling) [-]
-    models: "module.TABLE:ALIASES": the dispatch table (and alias table) naming the allowed strings;
-        checked by `check_models` (imports the core), not by `validate` [-]
-    sweep: "fast" (vectorised), "slow" (looped) or None (not sweepable) [-]
-    consumer: the module / function that reads it [-]
-    doc: one line for people [-]
+    Parameters
+    ----------
+    path : str
+        Dotted path, ``*`` for the index inside a list of tables [-].
+    kinds : tuple of str
+        Accepted value kinds: "number", "integer", "bool", "string", "table", "list",
+        "false" (the literal false) [-].
+    unit : str
+        Unit of a number ("-" dimensionless, "" not a number) [-].
+    default : object
+        The value used when the key is absent (None: none / required / see doc) [-].
+    low, high : float or None
+        Range of a number (None: unbounded) [unit].
+    low_open, high_open : bool
+        Exclude the bound itself [-].
+    allow_inf : bool
+        +inf accepted as "none" (e.g. a Caughey-Thomas n_ref_cm3) [-].
+    choices : tuple of str or None
+        Allowed strings (compared case-insensitively, "-"/" " as "_") [-].
+    models : str or None
+        "module.TABLE:ALIASES": the dispatch table (and alias table) naming the allowed strings;
+        checked by `check_models` (imports the core), not by `validate` [-].
+    pattern : str or None
+        Regular expression a string must match (with its meaning in `doc`) [-].
+    max_items : int or None
+        Longest list of tables (a resource ceiling) [-].
+    sweep : str or None
+        "fast" (vectorised), "slow" (looped) or None (not sweepable) [-].
+    consumer : str
+        The module / function that reads it [-].
+    doc : str
+        One line for people [-].
     """
 
     path: str
@@ -104,14 +121,22 @@ class Key:
 
     @property
     def section(self) -> str:
+        """The top-level section of the key ("absorber" for "absorber.thickness_um") [-]."""
         return self.path.split(".")[0]
 
     @property
     def name(self) -> str:
+        """The last part of the dotted path ("thickness_um") [-]."""
         return self.path.split(".")[-1]
 
     def allowed(self) -> str:
-        """What the key accepts, in words (for error messages and docs)."""
+        """What the key accepts, in words (for error messages and docs).
+
+        Returns
+        -------
+        str
+            E.g. "a number > 0 um" or 'one of "single", "mirror"' [-].
+        """
         parts = []
         for kind in self.kinds:
             if kind in (NUMBER, INTEGER):
@@ -140,7 +165,19 @@ class Key:
 
 @dataclass(frozen=True)
 class Section:
-    """One top-level section: its name, its consumer and a line for people."""
+    """One top-level section: its name, its consumer and a line for people.
+
+    Parameters
+    ----------
+    name : str
+        Section name, e.g. "absorber" [-].
+    consumer : str
+        The module / function that reads it [-].
+    doc : str
+        One line for people [-].
+    required : bool
+        The section must be present [-].
+    """
 
     name: str
     consumer: str
@@ -167,12 +204,24 @@ SECTIONS: dict[str, Section] = {s.name: s for s in (
     Section("background", "pipeline.build, light", "a warm scene seen by the absorber"),
     Section("detector", "detector.detector_from_table", "detector figures"),
     Section("solver", "pipeline, profile", "solver settings"),
+    Section("measurement", "analysis.command.analyse",
+            "measured lifetime or photoconductance data (optogen analyse only; optogen run refuses it)"),
+    Section("uncertainty", "analysis.uncertainty",
+            "input uncertainties of the analysis, relative 1 sigma (optogen analyse only)"),
     Section("sweep", "scenario.sweep_axes", "swept keys (dotted paths) and their values"),
 )}
 
 _NUM = NUMBER
 _R = "pipeline.build"
 _DOMAIN_T = dict(low=T_MIN_K, high=T_MAX_K)
+
+_A = "analysis.command"
+
+
+def _ka(path, kinds, unit="-", default=None, low=None, high=None, **kw):
+    """A key of [measurement] / [uncertainty]: never swept (one analysis per measured file)."""
+    return _k(path, kinds, unit, default, low, high, sweep=None, **kw)
+
 
 _KEYS: list[Key] = [
     _k("title", STRING, "", sweep=None, consumer="report", doc="title"),
@@ -199,9 +248,9 @@ _KEYS: list[Key] = [
     _k("absorber.donor_species", STRING, "", None, consumer="equilibrium", doc="donor species of the material"),
     _k("absorber.acceptor_species", STRING, "", None, consumer="equilibrium",
        doc="acceptor species of the material"),
-    _k("absorber.ni_model", STRING, "", None, models="equilibrium.NI_MODELS:_NI_ALIASES", consumer="equilibrium",
+    _k("absorber.ni_model", STRING, "", None, models="registry:ni", consumer="equilibrium",
        doc="intrinsic density model"),
-    _k("absorber.mobility_model", STRING, "", None, models="transport.MOBILITY_MODELS:_ALIASES", consumer="transport",
+    _k("absorber.mobility_model", STRING, "", None, models="registry:mobility", consumer="transport",
        doc="mobility model"),
     _k("absorber.incomplete_ionisation", BOOL, "", True, consumer="equilibrium",
        doc="false: every dopant ionised"),
@@ -257,21 +306,21 @@ _KEYS: list[Key] = [
           ("alpha", "-", None, 0.0, True, 10.0, False, "exponent alpha"),
           ("theta", "-", 0.0, -10.0, False, 10.0, False, "temperature exponent of mu_max"),
           ("xi", "-", 0.0, -10.0, False, 10.0, False, "temperature exponent of n_ref"))],
-    _k("absorber.custom.mobility_model", STRING, "", None, models="transport.MOBILITY_MODELS:_ALIASES",
+    _k("absorber.custom.mobility_model", STRING, "", None, models="registry:mobility",
        consumer="materials", doc="default mobility model"),
     _k("absorber.custom.optical_page", (STRING, LIST), "", None, consumer="materials",
        doc='"shelf/book/page" of the refractive-index database, or none'),
     _k("absorber.custom.bandgap_model", STRING, "", "varshni", choices=("varshni", "hansen1982"),
-       consumer="materials", doc="band gap model"),
+       models="registry:bandgap", consumer="materials", doc="band gap model"),
     _k("absorber.custom.mass_model", STRING, "", "constant", choices=("constant", "weiler1981"),
-       consumer="materials", doc="electron mass model"),
+       models="registry:mass", consumer="materials", doc="electron mass model"),
     _k("absorber.custom.radiative_model", STRING, "", "constant", choices=("constant", "hall1959"),
-       consumer="materials", doc="radiative coefficient model"),
+       models="registry:radiative", consumer="materials", doc="radiative coefficient model"),
     _k("absorber.custom.auger_model", STRING, "", "constant", choices=("constant", "beattie_landsberg1959"),
-       consumer="materials", doc="Auger coefficient model"),
-    _k("absorber.custom.ni_model", STRING, "", "nc_nv_eg", models="equilibrium.NI_MODELS:_NI_ALIASES", consumer="materials",
+       models="registry:auger", consumer="materials", doc="Auger coefficient model"),
+    _k("absorber.custom.ni_model", STRING, "", "nc_nv_eg", models="registry:ni", consumer="materials",
        doc="default intrinsic density model"),
-    _k("absorber.custom.bgn_model", STRING, "", "none", models="equilibrium.BGN_MODELS:_BGN_ALIASES", consumer="materials",
+    _k("absorber.custom.bgn_model", STRING, "", "none", models="registry:bgn", consumer="materials",
        doc="default band-gap narrowing model"),
     _k("absorber.custom.direct_gap", BOOL, "", True, consumer="materials", doc="direct fundamental gap"),
     _k("absorber.custom.sources", TABLE, "", None, consumer="materials", doc="field -> citation"),
@@ -325,12 +374,12 @@ _KEYS: list[Key] = [
     _k("optics.coating.n_coating", _NUM, "-", None, 1.0, 10.0, consumer="optics", doc="coating refractive index"),
     _k("optics.coating.thickness_nm", _NUM, "nm", None, 0.0, 1e5, consumer="optics", doc="coating thickness"),
     _k("optics.rear_reflectance", _NUM, "-", 1.0, 0.0, 1.0, consumer="optics", doc="rear reflectance"),
-    _k("optics.light_path", STRING, "", "lambertian", models="optics.LIGHT_PATHS:_PATH_ALIASES", consumer="optics",
+    _k("optics.light_path", STRING, "", "lambertian", models="registry:light_path", consumer="optics",
        doc="single, mirror or lambertian"),
     # -- [recombination] -------------------------------------------------------------------
-    _k("recombination.intrinsic", STRING, "", None, models="recombination.INTRINSIC_MODELS:_INTRINSIC_ALIASES",
+    _k("recombination.intrinsic", STRING, "", None, models="registry:intrinsic",
        consumer="recombination", doc="Auger + radiative model"),
-    _k("recombination.bandgap_narrowing", STRING, "", None, models="equilibrium.BGN_MODELS:_BGN_ALIASES",
+    _k("recombination.bandgap_narrowing", STRING, "", None, models="registry:bgn",
        consumer="recombination", doc="band-gap narrowing model"),
     _k("recombination.front_J0_fA_cm2", _NUM, "fA cm^-2", None, 0.0, 1e15, consumer="recombination",
        doc="front surface saturation current density"),
@@ -401,6 +450,49 @@ _KEYS: list[Key] = [
     _k("solver.nodes", INTEGER, "-", 200, 3, MAX_NODES, consumer="profile.mesh", doc="depth nodes requested"),
     _k("solver.chunk_size", INTEGER, "points", 100_000, 1, MAX_CHUNK, consumer="pipeline.run",
        doc="operating points per chunk"),
+    # -- [measurement] and [uncertainty]: read by optogen analyse only (optogen.analysis); not swept;
+    # a forward run refuses them (_rule_analysis_sections)
+    _ka("measurement.file", STRING, "", None, consumer="analysis.data",
+        doc="CSV of the measurement, relative to the scenario (lifetime curve or photoconductance record)"),
+    _ka("measurement.kind", STRING, "", "lifetime", choices=("lifetime", "photoconductance"), consumer=_A,
+        doc="lifetime: delta_n_cm3,tau_s columns; photoconductance: time_s,photoconductance_S,suns columns"),
+    _ka("measurement.dissociated_file", STRING, "", None, consumer="analysis.iron",
+        doc="lifetime CSV after FeB pair dissociation (file is then the paired state): iron density"),
+    _ka("measurement.optical_factor", NUMBER, "-", 1.0, 0.0, 2.0, low_open=True, consumer=_A,
+        doc="factor on the optics model's 1-sun generation (sample absorption relative to the model)"),
+    _ka("measurement.one_sun_mA_cm2", NUMBER, "mA cm^-2", None, 0.0, 100.0, low_open=True, consumer=_A,
+        doc="photogeneration current at 1 sun (default: AM1.5G through the [optics] model)"),
+    _ka("measurement.suns", NUMBER, "suns", 1.0, 0.0, 1e4, low_open=True, consumer="analysis.implied",
+        doc="a further light level for the implied Voc, in suns"),
+    _ka("measurement.window_low_cm3", NUMBER, "cm^-3", None, 0.0, 1e21, low_open=True, consumer="analysis.j0",
+        doc="Kane-Swanson window, lowest excess density (default 5x the net doping)"),
+    _ka("measurement.window_high_cm3", NUMBER, "cm^-3", None, 0.0, 1e21, low_open=True, consumer="analysis.j0",
+        doc="Kane-Swanson window, highest excess density (default: the highest measured)"),
+    _ka("measurement.fit_low_cm3", NUMBER, "cm^-3", None, 0.0, 1e21, low_open=True, consumer="analysis.j0",
+        doc="global fit, lowest excess density used (default: all)"),
+    _ka("measurement.fit_high_cm3", NUMBER, "cm^-3", None, 0.0, 1e21, low_open=True, consumer="analysis.j0",
+        doc="global fit, highest excess density used (default: all)"),
+    _ka("measurement.smoothing_points", INTEGER, "points", 0, 0, 10001, consumer="analysis.photoconductance",
+        doc="Savitzky-Golay window of the dn/dt smoothing, odd (0: automatic, about 1/25 of the record)"),
+    _ka("measurement.smoothing_order", INTEGER, "-", 2, 1, 5, consumer="analysis.photoconductance",
+        doc="polynomial order of the Savitzky-Golay smoothing"),
+    _ka("measurement.level_search", BOOL, "", False, consumer="analysis.j0",
+        doc="global fit: search the SRH level in both halves of the gap (true) or hold it at mid-gap / the "
+            "scenario's defect level (false)"),
+    _ka("uncertainty.thickness_rel", NUMBER, "-", 0.0, 0.0, 0.5, consumer="analysis.uncertainty",
+        doc="relative 1-sigma uncertainty of the thickness"),
+    _ka("uncertainty.doping_rel", NUMBER, "-", 0.0, 0.0, 0.5, consumer="analysis.uncertainty",
+        doc="relative 1-sigma uncertainty of the dopant density (or resistivity)"),
+    _ka("uncertainty.optical_factor_rel", NUMBER, "-", 0.0, 0.0, 0.5, consumer="analysis.uncertainty",
+        doc="relative 1-sigma uncertainty of the optical factor (generation)"),
+    _ka("uncertainty.mobility_rel", NUMBER, "-", 0.0, 0.0, 0.5, consumer="analysis.uncertainty",
+        doc="relative 1-sigma uncertainty of the mobility sum (photoconductance records)"),
+    _ka("uncertainty.method", STRING, "", "covariance", choices=("covariance", "bootstrap"),
+        consumer="analysis.uncertainty", doc="fit uncertainty from the covariance or a residual bootstrap"),
+    _ka("uncertainty.samples", INTEGER, "-", 200, 20, 5000, consumer="analysis.uncertainty",
+        doc="parameter samples for the propagation to implied Voc/FF (and bootstrap resamples)"),
+    _ka("uncertainty.seed", INTEGER, "-", 0, 0, 2**31 - 1, consumer="analysis.uncertainty",
+        doc="seed of the random samples (results are reproducible)"),
 ]
 
 KEYS: dict[str, Key] = {k.path: k for k in _KEYS}
@@ -423,7 +515,18 @@ _OPEN_TABLES = {"absorber.custom.sources"}
 
 
 def section_keys(prefix: str) -> tuple[str, ...]:
-    """The key names directly inside a section or table, e.g. section_keys("light") -> ("source", "suns", ...)."""
+    """The key names directly inside a section or table.
+
+    Parameters
+    ----------
+    prefix : str
+        A section or dotted table path, e.g. "light" or "recombination.defects.*" [-].
+
+    Returns
+    -------
+    tuple of str
+        The key names, e.g. section_keys("light") -> ("source", "suns", ...) [-].
+    """
     depth = prefix.count(".") + 1
     return tuple(k.path.split(".")[depth] for k in _KEYS
                  if k.path.startswith(prefix + ".") and k.path.count(".") == depth)
@@ -434,7 +537,13 @@ assert set(section_keys("light")) == {"source", *LIGHT_SCALINGS, *LIGHT_SPOT_KEY
 
 
 def fast_keys() -> tuple[str, ...]:
-    """Keys evaluated as arrays in a sweep."""
+    """Keys evaluated as arrays in a sweep.
+
+    Returns
+    -------
+    tuple of str
+        The dotted paths whose `Key.sweep` is "fast" [-].
+    """
     return tuple(k.path for k in _KEYS if k.sweep == FAST)
 
 
@@ -442,7 +551,18 @@ _INDEX = re.compile(r"\.(\d+)(?=\.|$)")
 
 
 def key_for(path: str) -> Key | None:
-    """The Key of a concrete dotted path ("recombination.defects.0.density_cm3"), or None."""
+    """The Key of a concrete dotted path.
+
+    Parameters
+    ----------
+    path : str
+        A dotted path, list indices as numbers ("recombination.defects.0.density_cm3") [-].
+
+    Returns
+    -------
+    Key or None
+        The declared key (indices matched by ``*``), or None for an unknown path [-].
+    """
     return KEYS.get(_INDEX.sub(".*", path))
 
 
@@ -469,10 +589,28 @@ def _as_number(path: str, key: Key, value) -> float | None:
 
 
 def check_value(path: str, value, key: Key | None = None):
-    """Check one value against its key; returns it (ints of a number key as float).
+    """Check one value against its key.
 
-    Raises InputError naming `path` for a wrong kind, a value out of range or a choice
-    not allowed.  Tables are checked key by key (`check_table`).
+    Tables are checked key by key (`check_table`).
+
+    Parameters
+    ----------
+    path : str
+        The dotted path, named in errors [-].
+    value : object
+        The value [unit of the key].
+    key : Key, optional
+        The key (default: `key_for(path)`) [-].
+
+    Returns
+    -------
+    object
+        The value (ints of a number key as float) [unit of the key].
+
+    Raises
+    ------
+    InputError
+        Naming `path` for a wrong kind, a value out of range or a choice not allowed.
     """
     key = key or key_for(path)
     if key is None:
@@ -530,7 +668,20 @@ def _check_range(path: str, key: Key, x) -> None:
 
 
 def check_table(path: str, table: Mapping) -> None:
-    """Check every key of a table (a section, absorber.custom, a defect, ...) against the schema."""
+    """Check every key of a table (a section, absorber.custom, a defect, ...) against the schema.
+
+    Parameters
+    ----------
+    path : str
+        The dotted path of the table [-].
+    table : mapping
+        Its keys and values [-].
+
+    Raises
+    ------
+    InputError
+        Naming the first unknown key or bad value.
+    """
     if path in _OPEN_TABLES:
         for k, v in table.items():
             if not isinstance(v, str):
@@ -556,8 +707,20 @@ def _hint(path: str) -> str | None:
 
 
 def validate(data: Mapping[str, Any]) -> None:
-    """Check a whole scenario table (without [sweep]): names, kinds, ranges, choices and the
-    rules that tie keys together.  Raises InputError naming the first bad field."""
+    """Check a whole scenario table (without [sweep]).
+
+    Names, kinds, ranges, choices and the rules that tie keys together.
+
+    Parameters
+    ----------
+    data : mapping
+        A scenario's nested tables [-].
+
+    Raises
+    ------
+    InputError
+        Naming the first bad field.
+    """
     if not isinstance(data, Mapping):
         raise InputError("scenario", data, "a table")
     for name, value in data.items():
@@ -625,7 +788,15 @@ def _rule_surfaces(data):
                              f"only one of {side}_J0_fA_cm2 and {side}_S_cm_s per surface")
 
 
-_RULES = (_rule_doping, _rule_background, _rule_detector, _rule_surfaces)
+def _rule_analysis_sections(data):
+    # [measurement] / [uncertainty] describe measured data: a forward run must not ignore them silently
+    for name in ("measurement", "uncertainty"):
+        if name in data:
+            raise InputError(name, f"[{name}]", "no [measurement] or [uncertainty] section in a forward run: "
+                             "they describe measured data", "use optogen analyse for this scenario")
+
+
+_RULES = (_rule_doping, _rule_background, _rule_detector, _rule_surfaces, _rule_analysis_sections)
 
 
 # ---------------------------------------------------------------------------
@@ -633,10 +804,22 @@ _RULES = (_rule_doping, _rule_background, _rule_detector, _rule_surfaces)
 # ---------------------------------------------------------------------------
 
 def check_sweep_values(path: str, values) -> np.ndarray:
-    """Check every value of one sweep axis against its key; returns a 1-D array.
+    """Check every value of one sweep axis against its key.
 
     Numbers become a float array (integers of an integer key an int array), booleans a
     bool array.  Mixed kinds, strings, tables and lists are rejected.
+
+    Parameters
+    ----------
+    path : str
+        The swept dotted key ("light.suns"); errors name ``sweep.<path>`` [-].
+    values : list
+        The values of the axis [unit of the key].
+
+    Returns
+    -------
+    ndarray
+        The values, 1-D [unit of the key].
     """
     field = f"sweep.{path}"
     key = key_for(path)
@@ -739,7 +922,13 @@ def _get(data, path):
 # ---------------------------------------------------------------------------
 
 def json_schema() -> dict:
-    """A JSON Schema (draft 2020-12) of a scenario file, for editor completion of TOML files."""
+    """A JSON Schema (draft 2020-12) of a scenario file, for editor completion of TOML files.
+
+    Returns
+    -------
+    dict
+        The schema, ready for `json.dump` [-].
+    """
 
     def node(prefix: str) -> dict:
         props = {}
@@ -808,7 +997,18 @@ def _json_key(key: Key, path: str) -> dict:
 
 
 def markdown_keys(prefix: str) -> str:
-    """A Markdown table of the keys directly inside `prefix` (key, kind, unit, default, range, sweep)."""
+    """A Markdown table of the keys directly inside `prefix`.
+
+    Parameters
+    ----------
+    prefix : str
+        A section or dotted table path, e.g. "absorber" [-].
+
+    Returns
+    -------
+    str
+        The table: key, what it accepts (kind, range, unit), default, sweep [-].
+    """
     rows = ["| key | accepts | default | sweep |", "|---|---|---|---|"]
     for name in section_keys(prefix):
         k = KEYS[f"{prefix}.{name}"]
@@ -817,7 +1017,13 @@ def markdown_keys(prefix: str) -> str:
 
 
 def documented_keys() -> Iterable[str]:
-    """Every declared dotted path."""
+    """Every declared dotted path.
+
+    Returns
+    -------
+    tuple of str
+        The dotted paths of `KEYS` [-].
+    """
     return tuple(KEYS)
 
 

@@ -24,7 +24,8 @@ def test_readme_model_list_is_the_generated_one():
 
 
 def test_every_kind_has_models_and_every_record_is_complete():
-    assert registry.kinds() == ["ni", "bgn", "mobility", "intrinsic", "radiative", "auger", "light_path"]
+    assert registry.kinds() == ["ni", "bgn", "mobility", "intrinsic", "bandgap", "mass", "radiative", "auger",
+                                "light_path"]
     for m in registry.models():
         assert callable(m.function) and callable(m.call)
         assert m.keys and all("." in k for k in m.keys)
@@ -56,8 +57,71 @@ def test_scenario_keys_select_the_kinds():
         for k in m.keys:
             by_key.setdefault(k, set()).add(m.kind)
     assert all(len(v) == 1 for v in by_key.values())
-    named = [k.path for k in schema.KEYS.values() if k.models and not k.models.startswith("materials.")]
-    assert named and all(p in by_key for p in named)
+    named = [k for k in schema.KEYS.values() if k.models and not k.models.startswith("materials.")]
+    assert named and all(k.path in by_key for k in named)
+    # each names the kind it checks ("registry:KIND"), the kind of the models that key selects
+    for k in named:
+        assert k.models == "registry:" + by_key[k.path].pop(), k.path
+    # every registered scenario key is declared with models= in the schema
+    assert {k.path for k in named} == set(by_key)
+
+
+def test_schema_choices_of_a_model_key_are_the_canonical_names():
+    # a model key that also lists choices (for the JSON Schema enum) lists exactly the registry's names
+    from optogen import schema
+    keys = [k for k in schema.KEYS.values() if k.models and k.models.startswith("registry:") and k.choices]
+    assert {k.path for k in keys} >= {"absorber.custom.bandgap_model", "absorber.custom.mass_model"}
+    for k in keys:
+        assert set(k.choices) == {m.name for m in registry.models(k.models.split(":", 1)[1])}, k.path
+
+
+def test_check_models_reads_the_kind_of_each_key():
+    from optogen import schema
+    with pytest.raises(InputError) as err:
+        schema.check_models({"absorber": {"custom": {"mass_model": "weiler1918"}}})
+    assert err.value.field == "absorber.custom.mass_model"
+    assert "did you mean" in (err.value.hint or "") and "weiler1981" in err.value.hint
+
+
+def test_bandgap_and_mass_models_of_the_record():
+    # Varshni 1967 with the Si parameters of Thurmond 1975 (J. Electrochem. Soc. 122, 1133, from memory):
+    # Eg(300 K) = 1.17 - 4.73e-4 * 300^2 / (300 + 636) = 1.17 - 42.57 / 936 = 1.124519 eV (worked by hand)
+    varshni = registry.pick("bandgap", "Varshni")
+    assert varshni.function(300.0, 1.17, 4.73e-4, 636.0) == pytest.approx(1.124519, abs=1e-6)
+    si = SI.with_(eg0_eV=1.17, varshni_alpha_eV_K=4.73e-4, varshni_beta_K=636.0)
+    assert si.bandgap_eV(300.0) == pytest.approx(1.124519, abs=1e-6)
+    # Weiler 1981 Kane mass: m0/me = 1 + 2F + Ep/3 (2/Eg + 1/(Eg + Delta)); Eg = 0.1, Ep = 19, Delta = 1,
+    # F = -0.8: -0.6 + 6.33333 * (20 + 0.909091) = 131.8242, me = 0.0075859 m0 (worked by hand)
+    weiler = registry.pick("mass", "Weiler-1981")
+    assert weiler.function(0.1, 19.0, 1.0, -0.8) == pytest.approx(0.0075859, rel=1e-4)
+    # names are looked up in the registry, so any accepted spelling selects the model
+    hg = materials.get("HgCdTe", composition_x=0.2)
+    T = np.array([77.0, 300.0])
+    assert np.array_equal(hg.with_(mass_model="Weiler-1981").electron_mass_m0(T), hg.electron_mass_m0(T))
+    assert np.array_equal(hg.with_(bandgap_model="HANSEN 1982").bandgap_eV(T), hg.bandgap_eV(T))
+    # the constant model is the record's own mass
+    assert np.array_equal(SI.electron_mass_m0(T), [SI.me_dos_m0] * 2)
+
+
+def test_electron_thermal_speed_follows_the_mass_model():
+    # with a temperature-dependent mass: v = sqrt(8 k T / (pi m_e m0)) (Maxwell-Boltzmann mean speed, analytic;
+    # k, m_e from scipy.constants); with the record's constant mass: v_300K sqrt(T / 300) (the record's law)
+    from scipy import constants as sc
+    hg = materials.get("HgCdTe", composition_x=0.3)
+    T = 120.0
+    v_e, _ = hg.vth_cm_s(T)
+    expected = 100.0 * np.sqrt(8 * sc.k * T / (np.pi * hg.electron_mass_m0(T) * sc.m_e))
+    assert v_e == pytest.approx(expected, rel=1e-9)
+    flat = hg.with_(mass_model="constant")
+    assert flat.vth_cm_s(T)[0] == pytest.approx(hg.vth_e_300K_cm_s * np.sqrt(T / 300.0), rel=1e-15)
+
+
+def test_hansen_gap_needs_a_composition():
+    # the registry's requires= metadata: one InputError instead of a NaN gap
+    with pytest.raises(InputError) as err:
+        SI.with_(bandgap_model="hansen1982").bandgap_eV(300.0)
+    assert err.value.field == "absorber.custom.bandgap_model"
+    assert "composition_x" in str(err.value)
 
 
 @pytest.mark.parametrize("call, field", [

@@ -6,6 +6,6 @@ SRH parameters and the level branches (Rein 2005), implied Voc/J-V/FF from the m
 iron (Zoth & Bergholz 1990) and the uncertainties.  Every rate comes from the forward physics
 (`optogen.recombination`, `optogen.steady_state`, `optogen.transport`, `optogen.equilibrium`).
 """
-from .command import AnalysisResult, analyse, analyse_folder, load, main
+from .command import AnalysisResult, analyse, analyse_folder, check, load, main
 
-__all__ = ["AnalysisResult", "analyse", "analyse_folder", "load", "main"]
+__all__ = ["AnalysisResult", "analyse", "analyse_folder", "check", "load", "main"]

@@ -19,8 +19,9 @@ import numpy as np
 
 from optogen import schema
 from optogen.constants import q_C
-from optogen.errors import InputError, did_you_mean
-from optogen.scenario import Scenario, load_scenario, parse_value
+from optogen.errors import InputError
+from optogen.recombination import j0_at_temperature_fA_cm2
+from optogen.scenario import UNIT_SUFFIXES, Scenario, load_scenario, parse_value
 
 from . import keys as _keys
 from .data import LifetimeData, folder_files, read_lifetime_csv, read_record_csv
@@ -35,7 +36,7 @@ from .sample import Sample, one_sun_photocurrent_mA_cm2, sample_from_scenario
 from .uncertainty import bootstrap_samples, parameter_samples, quadrature
 
 MECHANISM_NAMES = ("srh", "surface", "auger", "radiative")
-OWN_SECTIONS = ("measurement", "uncertainty")
+OWN_SECTIONS = _keys.OWN_SECTIONS
 
 
 # ---------------------------------------------------------------------------
@@ -43,15 +44,11 @@ OWN_SECTIONS = ("measurement", "uncertainty")
 # ---------------------------------------------------------------------------
 
 def _check_section(name: str, table) -> dict:
+    """One of the two analysis sections checked against the schema (`optogen.schema.check_table`)."""
     if not isinstance(table, Mapping):
         raise InputError(name, table, f"a table ([{name}])")
-    allowed = _keys.section_keys(name)
-    out = {}
-    for k, v in table.items():
-        if k not in allowed:
-            raise InputError(f"{name}.{k}", v, f"a key of [{name}]: " + ", ".join(allowed), did_you_mean(k, allowed))
-        out[k] = schema.check_value(f"{name}.{k}", v, _keys.KEY_BY_PATH[f"{name}.{k}"])
-    return out
+    schema.check_table(name, table)
+    return {k: schema.check_value(f"{name}.{k}", v) for k, v in table.items()}
 
 
 def load(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
@@ -59,10 +56,15 @@ def load(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
 
     source: a path to a .toml file, TOML text, a parsed table or a `Scenario` [-];
     overrides: dotted keys -> values, as ``--set`` (``measurement.*`` and ``uncertainty.*`` too) [-].
+    The two sections are checked against their schema keys here; the rest of the scenario by
+    `optogen.scenario.load_scenario` (which refuses them: a forward run has no measurement).
+    The returned Scenario keeps the source text (with both sections) and path, for the files.
     """
     base = Path(base_dir) if base_dir is not None else None
+    text, where = "", "<text>"
     if isinstance(source, Scenario):
         data, base = copy.deepcopy(dict(source.data)), base or source.base_dir
+        text, where = source.text, source.path
     elif isinstance(source, Mapping):
         data = copy.deepcopy(dict(source))
     elif isinstance(source, (str, Path)):
@@ -78,7 +80,7 @@ def load(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
                 text = raw.decode("utf-8")
             except UnicodeDecodeError as exc:
                 raise InputError("scenario", str(p), "UTF-8 text", f"byte {exc.start}: {exc.reason}") from None
-            base = base or p.resolve().parent
+            base, where = base or p.resolve().parent, str(p)
         else:
             text = str(source)
         try:
@@ -87,7 +89,12 @@ def load(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
             raise InputError("scenario", str(p or "<text>"), f"valid TOML ({exc})") from None
     else:
         raise InputError("scenario", type(source).__name__, "a path to a .toml file, the TOML text or a table")
-    own = {name: dict(data.pop(name, None) or {}) for name in OWN_SECTIONS}
+    own = {}
+    for name in OWN_SECTIONS:
+        table = data.pop(name, None)
+        if table is not None and not isinstance(table, Mapping):
+            raise InputError(name, table, f"a table ([{name}])")
+        own[name] = dict(table or {})
     rest_over = {}
     for k, v in dict(overrides or {}).items():
         head = k.split(".")[0]
@@ -100,7 +107,23 @@ def load(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
         raise InputError("measurement.file", None, "the CSV of the measurement (relative to the scenario)",
                          "a [measurement] section with file = \"...\"")
     sc = load_scenario(data, rest_over or None, base_dir=base)
+    sc = dataclasses.replace(sc, text=text, path=where)
     return sc, own["measurement"], own["uncertainty"]
+
+
+def check(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None) -> str:
+    """Everything `optogen check` can check of an analysis scenario without analysing: the schema
+    (both analysis sections and the rest), the set-up (`pipeline.check`: material, models, optics)
+    and the data file(s) (read and checked line by line).  Returns a one-line summary [-]."""
+    from optogen.pipeline import check as forward_check
+    sc, meas, _ = load(source, overrides, base_dir=base_dir)
+    forward_check(sc)
+    kind = _opt(meas, "measurement", "kind")
+    path = sc.base_dir / meas["file"]
+    n = read_lifetime_csv(path).delta_n_cm3.size if kind == "lifetime" else read_record_csv(path).time_s.size
+    if "dissociated_file" in meas:
+        read_lifetime_csv(sc.base_dir / meas["dissociated_file"], "measurement.dissociated_file")
+    return f"analysis scenario, {kind} data {Path(meas['file']).name} ({n} rows): run it with optogen analyse"
 
 
 def _opt(table, section, name):
@@ -132,6 +155,8 @@ class AnalysisResult:
     notes: list = field(default_factory=list)
     record: Any = None
     ids_fit: Any = None
+    scenario: Any = None            #: the Scenario (without the two analysis sections; its text has them)
+    settings: dict = field(default_factory=dict)     #: the checked [measurement] and [uncertainty] tables
 
     # -- JSON ----------------------------------------------------------------
     def to_dict(self) -> dict:
@@ -139,6 +164,10 @@ class AnalysisResult:
         b = self.fit.best
         s = self.sample
         u = self.uncertainty
+        ref_K = j0_reference_K(s)
+
+        def at_ref(j0):
+            return None if ref_K is None or j0 is None else float(j0_at_reference_fA_cm2(s, j0))
         out = {
             "title": self.title,
             "sample": {"material": s.material.name, "type": s.kind, "donors_cm3": s.donors_cm3,
@@ -148,15 +177,26 @@ class AnalysisResult:
             "data": {"file": self.data.path, "kind": self.kind, "points": int(self.data.delta_n_cm3.size),
                      "delta_n_min_cm3": float(self.data.delta_n_cm3.min()),
                      "delta_n_max_cm3": float(self.data.delta_n_cm3.max())},
-            "J0_fA_cm2": {"global_fit": b.J0_fA_cm2, "global_fit_std": u["J0_std_fA_cm2"],
+            "J0_fA_cm2": {"measurement_temperature_K": s.temperature_K,
+                          "global_fit": b.J0_fA_cm2, "global_fit_std": u["J0_std_fA_cm2"],
                           "global_fit_ci95": list(u["J0_ci95_fA_cm2"]),
+                          "reference_temperature_K": ref_K,
+                          "global_fit_at_reference": at_ref(b.J0_fA_cm2),
+                          "global_fit_at_reference_std": at_ref(u["J0_std_fA_cm2"]),
+                          "global_fit_at_reference_ci95": [at_ref(v) for v in u["J0_ci95_fA_cm2"]],
                           "kane_swanson1985": None if self.kane_swanson is None else self.kane_swanson.J0_fA_cm2,
                           "kane_swanson1985_std": None if self.kane_swanson is None
                           else self.kane_swanson.J0_std_fA_cm2,
                           "kane_swanson1985_window_cm3": None if self.kane_swanson is None
                           else list(self.kane_swanson.window_cm3),
+                          "kane_swanson1985_at_reference": None if self.kane_swanson is None
+                          else at_ref(self.kane_swanson.J0_fA_cm2),
+                          "kane_swanson1985_at_reference_std": None if self.kane_swanson is None
+                          else at_ref(self.kane_swanson.J0_std_fA_cm2),
                           "kane_swanson1985_note": self.kane_swanson_note,
-                          "note": "sum of both surfaces, at the measurement temperature"},
+                          "note": "sum of both surfaces; global_fit and kane_swanson1985 at the measurement "
+                                  "temperature, *_at_reference carried to recombination.J0_reference_K by "
+                                  "n_i^2(T_ref)/n_i^2(T) (null when J0_reference_K = false)"},
             "srh": {"level_eV": b.level_eV, "level_held": b.half == "fixed", "branch": b.half,
                     "level_interval_eV": list(b.level_interval_eV),
                     "tau_n0_s": b.tau_n0_s, "tau_n0_std_s": u["tau_n0_std_s"],
@@ -191,17 +231,24 @@ class AnalysisResult:
                  f"Sample: {s.kind}-type {s.material.name}, {dop} cm^-3, W = {s.thickness_cm * 1e4:.4g} um, "
                  f"{s.temperature_K:g} K; {self.kind} data {Path(self.data.path).name}: {self.data.delta_n_cm3.size} "
                  f"points, dn {self.data.delta_n_cm3.min():.3g}-{self.data.delta_n_cm3.max():.3g} cm^-3",
-                 f"J0 (both surfaces, global fit): {_pm(b.J0_fA_cm2, u['J0_std_fA_cm2'])} fA cm^-2 "
+                 f"J0 (both surfaces, global fit, at {s.temperature_K:g} K): {_pm(b.J0_fA_cm2, u['J0_std_fA_cm2'])} fA cm^-2 "
                  f"(95 % CI {u['J0_ci95_fA_cm2'][0]:.3g}-{u['J0_ci95_fA_cm2'][1]:.3g})"
                  if "J0" not in b.at_bound and np.isfinite(u["J0_std_fA_cm2"]) else
                  f"J0 (both surfaces, global fit): not resolved by these data (the fit runs to {b.J0_fA_cm2:.3g} "
                  "fA cm^-2: the surface term is too small, or, in low injection, indistinguishable from SRH)"]
-        if self.kane_swanson is not None:
-            ks = self.kane_swanson
-            lines.append(f"J0 (Kane-Swanson 1985, dn {ks.window_cm3[0]:.3g}-{ks.window_cm3[1]:.3g} cm^-3, "
-                         f"{ks.points} points): {_pm(ks.J0_fA_cm2, ks.J0_std_fA_cm2)} fA cm^-2")
-        else:
-            lines.append(f"J0 (Kane-Swanson 1985): not applicable, {self.kane_swanson_note}")
+        ref_K = j0_reference_K(s)
+        if ref_K is not None and ref_K != s.temperature_K:
+            parts = []
+            if "J0" not in b.at_bound and np.isfinite(u["J0_std_fA_cm2"]):
+                parts.append("global fit " + _pm(float(j0_at_reference_fA_cm2(s, b.J0_fA_cm2)),
+                                                 float(j0_at_reference_fA_cm2(s, u["J0_std_fA_cm2"]))))
+            if self.kane_swanson is not None:
+                ks = self.kane_swanson
+                parts.append("Kane-Swanson " + _pm(float(j0_at_reference_fA_cm2(s, ks.J0_fA_cm2)),
+                                                   float(j0_at_reference_fA_cm2(s, ks.J0_std_fA_cm2))))
+            if parts:
+                lines.append(f"J0 at the reference {ref_K:g} K (recombination.J0_reference_K; n_i^2 scaling of the "
+                             f"forward model): {', '.join(parts)} fA cm^-2")
         lvl = (f"level held at Ev + {b.level_eV:.3f} eV" if b.half == "fixed"
                else f"best branch {b.half} half, Ev + {b.level_eV:.3f} eV")
         lines.append(f"Bulk SRH ({lvl}): tau_n0 = {_pm(b.tau_n0_s * 1e6, u['tau_n0_std_s'] * 1e6)} us, "
@@ -266,18 +313,115 @@ class AnalysisResult:
         im = self.implied
         return {"lifetime": lt, "jv": {"voltage_V": im["jv_voltage_V"], "current_mA_cm2": im["jv_current_mA_cm2"]}}
 
-    def to_dataset(self):
-        """xarray Dataset: the curves (dims delta_n, jv) and the fitted figures as attributes."""
+    def to_dataset(self, history: str | None = None):
+        """xarray Dataset in the house CF-1.10 form of the forward results.
+
+        The curves on dimensions ``delta_n`` (measured points), ``jv_point`` (implied J-V) and
+        ``trap_level`` (the IDLS solution surface); every number of `to_dict` as a scalar
+        variable (a 2-vector interval on ``bound``: low, high) named with its unit suffix, so
+        that units and long_name come from the same rules as the forward results
+        (`optogen.pipeline.result.var_attrs`, `add_attrs`); the full JSON and the analysis
+        sections as global attributes.
+        """
+        import json
         import xarray as xr
+        from optogen.pipeline.result import add_attrs, var_attrs
+        from optogen.scenario import toml_text
         cur = self.curves()
         lt = cur["lifetime"]
-        ds = xr.Dataset({k: ("delta_n", np.asarray(v, float)) for k, v in lt.items() if k != "delta_n_cm3"},
-                        coords={"delta_n": ("delta_n", lt["delta_n_cm3"], {"units": "cm^-3"})})
-        ds["implied_current_mA_cm2"] = ("jv", np.asarray(cur["jv"]["current_mA_cm2"]))
-        ds["implied_voltage_V"] = ("jv", np.asarray(cur["jv"]["voltage_V"]))
-        flat = _flatten(self.to_dict())
-        ds.attrs.update({k: v for k, v in flat.items() if isinstance(v, (int, float, str)) and not isinstance(v, bool)})
+        dn = np.asarray(lt["delta_n_cm3"], float)
+        ds = xr.Dataset(coords={"delta_n": ("delta_n", dn, {"long_name": "excess carrier density",
+                                                             "units": "cm^-3"})})
+        for k, v in lt.items():
+            if k == "delta_n_cm3":
+                continue
+            ds[k] = ("delta_n", np.asarray(v, float), var_attrs(k, v))
+        ds["inverse_tau_corrected"] = ("delta_n", np.asarray(self.inverse_corrected_s, float),
+                                       {"long_name": "corrected inverse lifetime 1/tau_eff - 1/tau_intrinsic",
+                                        "units": "s^-1"})
+        for k, v in (("implied_voltage_V", cur["jv"]["voltage_V"]),
+                     ("implied_current_mA_cm2", cur["jv"]["current_mA_cm2"])):
+            ds[k] = ("jv_point", np.asarray(v, float), var_attrs(k, v))
+        if self.ids is not None:
+            d = self.ids
+            ds = ds.assign_coords(trap_level=("trap_level", np.asarray(d.level_eV, float),
+                                              {"long_name": "trap level above the valence band edge",
+                                               "units": "eV"}))
+            for k, v in (("dpss_tau_n0_s", d.tau_n0_s), ("dpss_tau_p0_s", d.tau_p0_s), ("dpss_k", d.k),
+                         ("dpss_chi2", d.chi2)):
+                ds[k] = ("trap_level", np.asarray(v, float), var_attrs(k, v))
+        flat = self.to_dict()
+        for parts, v in _leaves(flat):
+            if parts[0] == "title" or v is None:
+                continue
+            name = _scalar_name(parts)
+            if name in ds.variables:
+                raise RuntimeError(f"two analysis outputs named {name}")
+            if isinstance(v, list):
+                if len(v) == 2 and all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in v):
+                    ds[name] = ("bound", np.asarray(v, float), var_attrs(name, np.asarray(v, float)))
+                    ds[name].attrs["long_name"] += " (interval: low, high)"
+                elif v and all(isinstance(x, str) for x in v):
+                    ds[name] = ((), "; ".join(v), var_attrs(name, np.asarray("")))
+                continue                                  # lists of records: in the JSON attribute
+            arr = np.asarray(v)
+            ds[name] = ((), arr, var_attrs(name, arr))
+        add_attrs(ds, self.scenario, history)
+        ds.attrs["analysis"] = json.dumps(flat, allow_nan=False)
+        ds.attrs["analysis_sections"] = toml_text({k: v for k, v in self.settings.items() if v})
         return ds
+
+
+def _leaves(d, prefix=()):
+    """(path parts, value) of every leaf of a nested dict (lists are leaves)."""
+    for k, v in d.items():
+        if isinstance(v, dict):
+            yield from _leaves(v, prefix + (str(k),))
+        else:
+            yield prefix + (str(k),), v
+
+
+def _split_unit(part: str):
+    """(stem, unit suffix or "") of a key by the house suffixes (`optogen.scenario.UNIT_SUFFIXES`)."""
+    for suf in sorted(UNIT_SUFFIXES, key=len, reverse=True):
+        if part.endswith("_" + suf) and len(part) > len(suf) + 1:
+            return part[: -len(suf) - 1], suf
+    return part, ""
+
+
+def _scalar_name(parts) -> str:
+    """NetCDF name of a JSON leaf: the parts joined by "_", the unit suffix moved to the end
+    ("J0_fA_cm2", "global_fit_std" -> "J0_global_fit_std_fA_cm2"; a leaf's own suffix wins)."""
+    stems, unit = [], ""
+    for i, part in enumerate(parts):
+        stem, suf = _split_unit(part)
+        if i == len(parts) - 1 and suf:
+            stems.append(stem)
+            unit = suf
+        else:
+            stems.append(stem if suf else part)
+            unit = suf or unit
+    return "_".join(stems + ([unit] if unit else []))
+
+
+def j0_reference_K(smp: Sample) -> float | None:
+    """The forward model's J0 reference temperature (`recombination.J0_reference_K`) [K], or None
+    when the scenario sets it to false (a J0 then holds at every temperature)."""
+    ref = smp.intrinsic.J0_reference_K
+    return None if ref is None else float(ref)
+
+
+def j0_at_reference_fA_cm2(smp: Sample, J0_fA_cm2):
+    """A J0 measured at the sample temperature carried to `j0_reference_K` [fA cm^-2].
+
+    The forward model's one scaling, `optogen.recombination.j0_at_temperature_fA_cm2`, in the
+    inverse direction (quoted at the measurement temperature, wanted at the reference):
+    J0(T_ref) = J0(T) n_i^2(T_ref)/n_i^2(T).  A scale factor, so it also carries a 1-sigma value.
+    """
+    ref = j0_reference_K(smp)
+    if ref is None:
+        return np.asarray(J0_fA_cm2, dtype=float)
+    return j0_at_temperature_fA_cm2(J0_fA_cm2, smp.material, ref, J0_reference_K=smp.temperature_K)
 
 
 def _pm(v, s) -> str:
@@ -298,16 +442,6 @@ def _jsonable(x):
     if isinstance(x, (float, np.floating)):
         return float(x) if np.isfinite(x) else None
     return x
-
-
-def _flatten(d, prefix=""):
-    out = {}
-    for k, v in d.items():
-        if isinstance(v, dict):
-            out.update(_flatten(v, f"{prefix}{k}."))
-        elif v is not None and not isinstance(v, list):
-            out[prefix + k] = v
-    return out
 
 
 # ---------------------------------------------------------------------------
@@ -525,32 +659,58 @@ def analyse(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None
     res = AnalysisResult(sc.title, smp, data, kind, core["mech"], core["corr"], core["ks"], core["ks_note"],
                          core["fit"], ids, core["implied"], core["contributions"], uncertainty, iron, notes, rec)
     res.ids_fit = (sub, fit_data, j0_ids, j0_ids_std)
+    res.scenario = sc
+    res.settings = {"measurement": dict(meas), "uncertainty": dict(unc)}
     return res
 
 
-def analyse_folder(source, folder, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
+def _row(name: str, res: AnalysisResult) -> dict:
+    d = res.to_dict()
+    return {"file": name, "J0_fA_cm2": d["J0_fA_cm2"]["global_fit"],
+            "J0_std_fA_cm2": d["J0_fA_cm2"]["global_fit_std"],
+            "J0_reference_fA_cm2": d["J0_fA_cm2"]["global_fit_at_reference"],
+            "tau_n0_s": d["srh"]["tau_n0_s"], "tau_p0_s": d["srh"]["tau_p0_s"],
+            "tau_bulk_1sun_s": d["srh"]["tau_bulk_1sun_s"],
+            "implied_voc_1sun_V": d["implied"]["voc_1sun_V"],
+            "implied_voc_1sun_std_V": d["uncertainty"]["voc_1sun_std_V"],
+            "implied_ff_1sun": d["implied"]["ff_1sun"], "limiting_1sun": d["limiting_mechanism_1sun"]}
+
+
+def analyse_folder(source, folder, overrides: Mapping[str, Any] | None = None, *, base_dir=None,
+                   workers: int | None = None, scheduler: str | None = None):
     """One row per CSV file of `folder`, each analysed with the scenario (its `measurement.file`
     replaced), and the joint IDLS of all curves (the same defect in wafers of different doping).
+
+    In process by default; with `workers` (a local dask cluster of that many processes) or
+    `scheduler` (the address of a running dask.distributed scheduler) one task per file, the
+    same dask set-up as a forward sweep (`optogen.pipeline.sweep`, dask imported only then).
+    The answers are the same either way (each file's analysis is seeded by `uncertainty.seed`).
 
     Returns (pandas.DataFrame, results list, Dpss or None).  A bad file stops the batch with its
     InputError (naming the file and line): nothing is written half.
     """
     import pandas as pd
-    sc, meas, unc = load(source, overrides, base_dir=base_dir)
-    rows, results = [], []
-    for f in folder_files(folder):
+    load(source, overrides, base_dir=base_dir)                # the scenario checked once, before any task
+    files = folder_files(folder)
+    overs = []
+    for f in files:
         over = dict(overrides or {})
         over["measurement.file"] = str(Path(f).resolve())
-        res = analyse(source, over, base_dir=base_dir)
-        results.append(res)
-        d = res.to_dict()
-        rows.append({"file": f.name, "J0_fA_cm2": d["J0_fA_cm2"]["global_fit"],
-                     "J0_std_fA_cm2": d["J0_fA_cm2"]["global_fit_std"],
-                     "tau_n0_s": d["srh"]["tau_n0_s"], "tau_p0_s": d["srh"]["tau_p0_s"],
-                     "tau_bulk_1sun_s": d["srh"]["tau_bulk_1sun_s"],
-                     "implied_voc_1sun_V": d["implied"]["voc_1sun_V"],
-                     "implied_voc_1sun_std_V": d["uncertainty"]["voc_1sun_std_V"],
-                     "implied_ff_1sun": d["implied"]["ff_1sun"], "limiting_1sun": d["limiting_mechanism_1sun"]})
+        overs.append(over)
+    if workers is not None or scheduler is not None:
+        from optogen.pipeline.sweep import _dask_client      # dask only when asked for
+        client = _dask_client(workers, scheduler)
+        try:
+            futures = [client.submit(analyse, source, o, base_dir=base_dir, pure=False) for o in overs]
+            results = client.gather(futures)
+        finally:
+            cluster = client.cluster if not scheduler else None
+            client.close()
+            if cluster is not None:
+                cluster.close()
+    else:
+        results = [analyse(source, o, base_dir=base_dir) for o in overs]
+    rows = [_row(f.name, r) for f, r in zip(files, results)]
     joint = None
     if len(results) > 1:
         fits = []
@@ -558,7 +718,7 @@ def analyse_folder(source, folder, overrides: Mapping[str, Any] | None = None, *
             m, fd, j0, j0_std = r.ids_fit
             fits.append((m, fd.tau_s, fd.sigma_rel, j0, j0_std if np.isfinite(j0_std) else 0.0))
         joint = ids_with_j0_uncertainty(fits)
-    return pd.DataFrame(rows), results, joint
+    return pd.DataFrame(rows), list(results), joint
 
 
 # ---------------------------------------------------------------------------
@@ -582,8 +742,13 @@ def main(args) -> int:
     """
     import json
     over = _overrides(getattr(args, "set", []) or [])
+    workers, scheduler = getattr(args, "workers", None), getattr(args, "scheduler", None)
+    if (workers is not None or scheduler is not None) and not getattr(args, "folder", None):
+        raise InputError("--workers" if workers is not None else "--scheduler", workers or scheduler,
+                         "only with --folder (one analysis is a single task)", "add --folder DIR, or drop it")
     if getattr(args, "folder", None):
-        table, results, joint = analyse_folder(args.scenario, args.folder, over)
+        table, results, joint = analyse_folder(args.scenario, args.folder, over, workers=workers,
+                                               scheduler=scheduler)
         if args.out:
             from optogen import report
             out = Path(args.out)

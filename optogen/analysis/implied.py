@@ -10,7 +10,7 @@ with tau(dn) the MEASURED lifetime (log-log interpolation between the measured p
 outside the measured range, the fitted model.  Voc is V at the dn where q W U = J_gen;
 FF = max_dn(V J)/(Voc J_gen).  The maximum is searched on a fine log grid of dn and refined by
 a parabola through the three best points.  `steady_state.implied_jv` with the fitted
-`Recombination` gives the same curve from the model alone (tests/test_analysis_core.py checks
+`Recombination` gives the same curve from the model alone (tests/analysis/test_analysis_methods.py checks
 the two agree).
 """
 from __future__ import annotations

@@ -66,18 +66,24 @@ class Mechanisms:
     def srh_basis(self, level_from_ev_eV):
         """(A, B) with tau_SRH = tau_n0 A + tau_p0 B at every dn, for levels of shape (E,) -> (E, D) [-].
 
-        The SRH formula of `srh_shockley_read_hall1952` solved for tau_SRH = dn / U_SRH:
-        tau_SRH = [tau_p0 (n + n1') + tau_n0 (p + p1')] dn / (n p - n_i,eff^2),
-        n1' = n1 e^(shift/2), p1' = p1 e^(shift/2) (Shockley & Read 1952; Hall 1952): linear in
-        (tau_n0, tau_p0), the form used by lifetime spectroscopy (Rein 2005).
+        tau_SRH = dn / U_SRH is linear in (tau_n0, tau_p0) (Shockley & Read 1952; Hall 1952:
+        tau_SRH = [tau_p0 (n + n1') + tau_n0 (p + p1')] dn / (n p - n_i,eff^2)), the form used by
+        lifetime spectroscopy (Rein 2005).  A and B are taken from two evaluations of the forward
+        model's `srh_shockley_read_hall1952` (no second copy of the formula):
+        tau_a = tau_SRH(1, r) = A + r B and tau_b = tau_SRH(r, 1) = r A + B, r = 2^-30, solved
+        exactly for A and B (relative rounding below 1e-9 even where B/A ~ 1e16).
         """
-        et = np.asarray(level_from_ev_eV, dtype=float)[..., None]
+        et = np.asarray(level_from_ev_eV, dtype=float)[..., None, None]     # trailing level axis
         n1, p1 = self.level_densities_cm3(et)
-        s = np.exp(0.5 * self.shift)
-        n = self.sample.n0_cm3 + self.delta_n_cm3
-        p = self.sample.p0_cm3 + self.delta_n_cm3
-        w = self.delta_n_cm3 / self.excess_product_cm6
-        return (p + p1 * s) * w, (n + n1 * s) * w
+        smp = self.sample
+
+        def tau_srh(tn, tp):
+            u = srh_shockley_read_hall1952(smp.n0_cm3, smp.p0_cm3, self.delta_n_cm3, tn, tp, n1, p1, self.shift)
+            return self.delta_n_cm3 / u
+
+        r = 2.0 ** -30
+        ta, tb = tau_srh(1.0, r), tau_srh(r, 1.0)
+        return (ta - r * tb) / (1.0 - r * r), (tb - r * ta) / (1.0 - r * r)
 
     def inv_tau_eff_s(self, J0_fA_cm2, tau_n0_s, tau_p0_s, level_from_ev_eV):
         """1/tau_eff of the model [1/s] (parameters as in `inv_tau_srh_s`)."""

@@ -4,8 +4,9 @@
    dsigma W = q [(n0 + dn) mu_e(n, p) + (p0 + dn) mu_h(n, p) - n0 mu_e0 - p0 mu_h0] W
    (`optogen.transport.photoconductance_S`, each state with its own injection-dependent
    mobilities).  Since the mobilities depend on dn, dn is found by the fixed-point iteration
-   dn_(k+1) = [dsigma/q + n0 (mu_e0 - mu_e,k) + p0 (mu_h0 - mu_h,k)] / (mu_e,k + mu_h,k),
-   mobilities from `optogen.transport.mobility_cm2_Vs` at (n0 + dn_k, p0 + dn_k), until
+   dn_(k+1) = dn_k + [dsigma W - S(dn_k)] / (q W (mu_e,k + mu_h,k)) on the residual of the
+   forward photoconductance S(dn) (`photoconductance_of`), mobilities from
+   `optogen.transport.mobility_cm2_Vs` at (n0 + dn_k, p0 + dn_k), until
    |dn_(k+1) - dn_k| <= 1e-10 dn (a contraction: the mobilities change slowly with dn).
 2. Lifetime by the generalised analysis (H. Nagel, C. Berge and A. G. Aberle, J. Appl. Phys.
    86, 6218 (1999), doi:10.1063/1.371633):
@@ -53,13 +54,13 @@ def excess_density_cm3(smp: Sample, photoconductance, mobility_scale: float = 1.
     if np.any(s < 0):
         raise InputError("measurement.file", float(s[s < 0][0]), "photoconductance_S >= 0")
     T, nd, na, n0, p0 = smp.temperature_K, smp.donors_cm3, smp.acceptors_cm3, smp.n0_cm3, smp.p0_cm3
+    qW = q_C * smp.thickness_cm
     mu_e0, mu_h0 = (mobility_scale * np.asarray(m) for m in mobility_cm2_Vs(smp.material, T, nd, na, n0, p0))
-    target = s / (q_C * smp.thickness_cm)                       # dsigma [S/cm] / q
-    dn = target / (mu_e0 + mu_h0)
+    dn = s / (qW * (mu_e0 + mu_h0))
     for _ in range(iterations):
+        # step on the residual of the forward photoconductance, scaled by q W (mu_e + mu_h) at dn_k
         mu_e, mu_h = (mobility_scale * np.asarray(m) for m in mobility_cm2_Vs(smp.material, T, nd, na, n0 + dn, p0 + dn))
-        new = (target + n0 * (mu_e0 - mu_e) + p0 * (mu_h0 - mu_h)) / (mu_e + mu_h)
-        new = np.maximum(new, 0.0)
+        new = np.maximum(dn + (s - photoconductance_of(smp, dn, mobility_scale)) / (qW * (mu_e + mu_h)), 0.0)
         done = np.all(np.abs(new - dn) <= 1e-10 * np.maximum(new, 1e-300))
         dn = new
         if done:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import dataclasses
+import functools
 from dataclasses import dataclass, field
 from typing import Mapping
 
@@ -11,7 +12,17 @@ import numpy as np
 from .. import registry
 from ..constants import NC_M0_300K_cm3
 from ..errors import InputError, did_you_mean
-from .relations import bandgap_hansen1982, electron_mass_weiler1981, mean_thermal_speed_cm_s
+from .relations import electron_mass_from_record, mean_thermal_speed_cm_s
+
+
+@functools.lru_cache(maxsize=None)
+def _model(kind: str, name: str) -> registry.Model:
+    """The registered model of a record field (`kind` "bandgap", "mass", "radiative" or "auger").
+
+    Looked up once per name (case/separator-insensitive, aliases); an unknown name is the
+    registry's InputError on ``absorber.custom.<kind>_model``.
+    """
+    return registry.pick(kind, name, f"absorber.custom.{kind}_model")
 
 
 @dataclass(frozen=True)
@@ -56,6 +67,9 @@ class CaugheyThomas:
 @dataclass(frozen=True)
 class Material:
     """A semiconductor absorber.
+
+    The ``*_model`` fields name models of the registry (`optogen.registry`, kinds "bandgap",
+    "mass", "radiative", "auger"; `optogen.materials.relations` defines and registers them).
 
     Band gap: ``bandgap_model`` = "varshni" (Eg(T) = eg0_eV - varshni_alpha_eV_K T^2 / (T + varshni_beta_K))
     or "hansen1982" (Hg(1-x)Cd(x)Te, uses composition_x).
@@ -117,16 +131,13 @@ class Material:
     def bandgap_eV(self, T_K):
         """Band gap Eg(T) [eV] at temperature T_K [K] (no band-gap narrowing)."""
         T = np.asarray(T_K, dtype=float)
-        if self.bandgap_model == "hansen1982":
-            return bandgap_hansen1982(self.composition_x, T)
-        return self.eg0_eV - self.varshni_alpha_eV_K * T**2 / (T + self.varshni_beta_K)
+        model = registry.check_material(_model("bandgap", self.bandgap_model), self)
+        return model.call(self, T)
 
     def electron_mass_m0(self, T_K):
-        """Electron density-of-states mass [m0] at T_K [K] (constant unless mass_model = "weiler1981")."""
+        """Electron density-of-states mass [m0] at T_K [K] per `mass_model` (constant: me_dos_m0)."""
         T = np.asarray(T_K, dtype=float)
-        if self.mass_model == "weiler1981":
-            return electron_mass_weiler1981(self.bandgap_eV(T), self.kane_Ep_eV, self.spin_orbit_eV, self.kane_F)
-        return self.me_dos_m0 + 0.0 * T
+        return _model("mass", self.mass_model).call(self, T)
 
     def nc_cm3(self, T_K):
         """Effective density of states of the conduction band Nc(T) [cm^-3]."""
@@ -141,13 +152,13 @@ class Material:
     def vth_cm_s(self, T_K):
         """Electron and hole thermal velocities (v_e, v_h) [cm/s].
 
-        Scaled as sqrt(T/300) from the 300 K values; with mass_model =
-        "weiler1981" the electron velocity is the mean thermal speed
-        sqrt(8 k T / (pi m_e(T))) of the gap-dependent mass.
+        Scaled as sqrt(T/300) from the 300 K values; with a mass model other than
+        the record's constant mass (e.g. "weiler1981") the electron velocity is the
+        mean thermal speed sqrt(8 k T / (pi m_e(T))) of the temperature-dependent mass.
         """
         T = np.asarray(T_K, dtype=float)
         s = np.sqrt(T / 300.0)
-        if self.mass_model == "weiler1981":
+        if _model("mass", self.mass_model).function is not electron_mass_from_record:
             return mean_thermal_speed_cm_s(self.electron_mass_m0(T), T), self.vth_h_300K_cm_s * s
         return self.vth_e_300K_cm_s * s, self.vth_h_300K_cm_s * s
 
@@ -155,7 +166,7 @@ class Material:
     def radiative_coefficient_cm3_s(self, T_K):
         """Band-to-band radiative coefficient B(T) [cm^3/s] at T_K [K] per `radiative_model`."""
         T = np.asarray(T_K, dtype=float)
-        return registry.pick("radiative", self.radiative_model, "absorber.custom.radiative_model").call(self, T)
+        return _model("radiative", self.radiative_model).call(self, T)
 
     def auger_coefficients_cm6_s(self, T_K):
         """Auger coefficients (Cn, Cp) [cm^6/s] at T_K [K] per `auger_model`.
@@ -163,7 +174,7 @@ class Material:
         The Auger rate is (Cn n + Cp p)(n p - n_i^2).
         """
         T = np.asarray(T_K, dtype=float)
-        return registry.pick("auger", self.auger_model, "absorber.custom.auger_model").call(self, T)
+        return _model("auger", self.auger_model).call(self, T)
 
     # -- dopants ----------------------------------------------------------
     def dopant(self, name: str, field: str = "absorber.dopant_species") -> Dopant:

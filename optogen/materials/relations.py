@@ -1,4 +1,9 @@
 """Published relations the material records use (band gap, Kane mass, radiative and Auger constants).
+
+Each selectable relation is registered in `optogen.registry` under the kind a `Material` field
+names: "bandgap" (``bandgap_model``: varshni, hansen1982), "mass" (``mass_model``: constant,
+weiler1981), "radiative" (``radiative_model``) and "auger" (``auger_model``); the record's methods
+look the model up there (`Model.call(material, T_K)`), so no model name is compared by hand.
 """
 from __future__ import annotations
 
@@ -7,6 +12,36 @@ import numpy as np
 from .. import constants as C
 from .. import registry
 from ..constants import kT_eV
+
+
+def bandgap_varshni1967(T_K, eg0_eV, alpha_eV_K, beta_K):
+    """Band gap of a semiconductor by the Varshni relation.
+
+    Eg(T) = Eg(0) - alpha T^2 / (T + beta)
+
+    Parameters
+    ----------
+    T_K : array_like
+        Temperature [K].
+    eg0_eV : array_like
+        Band gap at 0 K [eV].
+    alpha_eV_K : array_like
+        Varshni alpha [eV K^-1].
+    beta_K : array_like
+        Varshni beta [K].
+
+    Returns
+    -------
+    ndarray
+        Eg [eV].
+
+    References
+    ----------
+    Y. P. Varshni, "Temperature dependence of the energy gap in semiconductors", Physica 34, 149
+    (1967), doi:10.1016/0031-8914(67)90062-6.
+    """
+    T = np.asarray(T_K, dtype=float)
+    return eg0_eV - alpha_eV_K * T**2 / (T + beta_K)
 
 
 def bandgap_hansen1982(x, T_K):
@@ -197,6 +232,24 @@ def auger1_beattie_landsberg1959(T_K, Eg_eV, me_m0, mh_m0, permittivity, nc_cm3,
             / (2.0 * nc_cm3 * nv_cm3 * 3.8e-18 * permittivity**2 * np.sqrt(1.0 + mu) * (1.0 + 2.0 * mu)))
 
 
+def electron_mass_from_record(material, T_K):
+    """The electron density-of-states mass stored in a material record, at every temperature.
+
+    Parameters
+    ----------
+    material : Material
+        Its me_dos_m0 [m0].
+    T_K : array_like
+        Temperature [K] (shapes the result only).
+
+    Returns
+    -------
+    ndarray
+        m_e [m0].
+    """
+    return material.me_dos_m0 + 0.0 * np.asarray(T_K, dtype=float)
+
+
 def radiative_from_record(material, T_K):
     """The radiative coefficient stored in a material record, at every temperature.
 
@@ -234,7 +287,29 @@ def auger_from_record(material, T_K):
     return material.auger_Cn_cm6_s + 0.0 * T, material.auger_Cp_cm6_s + 0.0 * T
 
 
-# Registered models of a material record's coefficients: `call(material, T_K)` (signature adapters only)
+# Registered models of a material record's band gap, mass and coefficients: `call(material, T_K)`
+# (signature adapters only)
+registry.register(
+    "bandgap", "varshni", bandgap_varshni1967, key="absorber.custom.bandgap_model",
+    call=lambda m, T: bandgap_varshni1967(T, m.eg0_eV, m.varshni_alpha_eV_K, m.varshni_beta_K),
+    summary="Eg(T) = eg0_eV - varshni_alpha_eV_K T^2 / (T + varshni_beta_K), the record's fields",
+    reference="Y. P. Varshni, Physica 34, 149 (1967)", doi="10.1016/0031-8914(67)90062-6")
+registry.register(
+    "bandgap", "hansen1982", bandgap_hansen1982, key="absorber.custom.bandgap_model",
+    call=lambda m, T: bandgap_hansen1982(m.composition_x, T), requires="composition_x",
+    summary="Hg(1-x)Cd(x)Te, a cubic in the Cd fraction x plus a term linear in T",
+    reference="G. L. Hansen, J. L. Schmit and T. N. Casselman, J. Appl. Phys. 53, 7099 (1982)",
+    doi="10.1063/1.330018")
+registry.register(
+    "mass", "constant", electron_mass_from_record, key="absorber.custom.mass_model",
+    summary="the record's me_dos_m0 at every temperature (electron thermal speed: the record's, as sqrt(T/300))",
+    reference="The record's source")
+registry.register(
+    "mass", "weiler1981", electron_mass_weiler1981, key="absorber.custom.mass_model",
+    call=lambda m, T: electron_mass_weiler1981(m.bandgap_eV(T), m.kane_Ep_eV, m.spin_orbit_eV, m.kane_F),
+    summary=("Kane k.p edge mass from Eg(T), kane_Ep_eV (> 0), spin_orbit_eV and kane_F; "
+             "electron thermal speed sqrt(8 k T / (pi m_e(T)))"),
+    reference="M. H. Weiler, Semiconductors and Semimetals vol. 16 (Academic, 1981), p. 119")
 registry.register(
     "radiative", "constant", radiative_from_record, key="absorber.custom.radiative_model",
     summary="the record's radiative_B_cm3_s at every temperature", reference="The record's source")
@@ -259,6 +334,8 @@ def _auger_bl(m, T):
     return cn, cn / m.auger_gamma
 
 
-#: model name -> coefficient(s) of (material, T_K) (views of the registry)
+#: model name -> band gap, mass or coefficient(s) of (material, T_K) (views of the registry)
+_BANDGAP_MODELS = {m.name: m.call for m in registry.models("bandgap", load=False)}
+_MASS_MODELS = {m.name: m.call for m in registry.models("mass", load=False)}
 _RADIATIVE_MODELS = {m.name: m.call for m in registry.models("radiative", load=False)}
 _AUGER_MODELS = {m.name: m.call for m in registry.models("auger", load=False)}

@@ -105,11 +105,33 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
              details: bool = False, trial: bool = False) -> dict[str, dict[str, np.ndarray]]:
     """All output blocks for `n` points, vectorised over the fast keys.
 
-    values: swept fast keys -> 1-D arrays of length n [units of the key]
-    details: also return curves for a single-point report (JV, lifetime, profile)
-    trial: the points are trial points of a search (the background-limit scan), not the
+    Parameters
+    ----------
+    setup : Setup
+        What is built once from the scenario (`setup.build`).
+    values : Mapping[str, numpy.ndarray]
+        Swept fast keys -> 1-D arrays of length n [units of the key].
+    n : int
+        Number of points [-].
+    details : bool, optional
+        Also return curves for a single-point report (JV, lifetime, profile), under the
+        key ``"_details"``.
+    trial : bool, optional
+        The points are trial points of a search (the background-limit scan), not the
         user's: a photodiode bias beyond a point's forward limit gives no value there
-        instead of an InputError
+        instead of an InputError.
+
+    Returns
+    -------
+    dict[str, dict[str, numpy.ndarray]]
+        Output blocks (``equilibrium``, ``light``, ``generation``, ``steady_state``,
+        ``profile``, ``detector``), each a mapping of output name to a 1-D array of length n
+        in the unit of its name's suffix.
+
+    Raises
+    ------
+    InputError
+        For a swept value outside its domain.
     """
     sc = setup.scenario
     ab = sc.section("absorber")
@@ -463,7 +485,21 @@ def background_limit(setup: Setup, T_low_K: float = 20.0, T_high_K: float = 400.
     Background-limited means the background photon noise exceeds all other
     noise together (`detector.background_limited`); the crossing is where the
     two are equal, i.e. D*/D*_BLIP = 1/sqrt(2).  Both from the full pipeline at
-    each trial temperature.  Returns `detector.BackgroundLimit` (temperature_K, found, note).
+    each trial temperature.
+
+    Parameters
+    ----------
+    setup : Setup
+        A set-up with a [detector] and a [background] table.
+    T_low_K : float, optional
+        Lower end of the temperature scan [K].
+    T_high_K : float, optional
+        Upper end of the temperature scan [K].
+
+    Returns
+    -------
+    detector.BackgroundLimit
+        temperature_K [K], found (bool) and a note.
     """
 
 
@@ -510,7 +546,24 @@ def _spectral_response(setup: Setup, blocks) -> dict[str, np.ndarray]:
 
 
 def point_details(setup: Setup, details, blocks) -> dict[str, Any]:
-    """Curves behind a single point: implied J-V, lifetime against delta n, detector spectral response."""
+    """Curves behind a single point: implied J-V, lifetime against delta n, detector spectral response.
+
+    Parameters
+    ----------
+    setup : Setup
+        The set-up of the point.
+    details : dict
+        The ``"_details"`` entry of `evaluate` (equilibrium, steady state, warnings).
+    blocks : dict
+        The output blocks of `evaluate` for the point.
+
+    Returns
+    -------
+    dict[str, Any]
+        ``setup``, and where they apply ``spectral_response``, ``lifetime_curve`` (delta n
+        [cm^-3] and lifetimes [s] from 1e12 to 1e17 cm^-3), ``implied_jv``
+        (`steady_state.implied_jv`) and ``warnings``.
+    """
     out: dict[str, Any] = {"setup": setup}
     if "detector" in blocks:
         out["spectral_response"] = _spectral_response(setup, blocks)

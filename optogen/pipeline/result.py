@@ -36,7 +36,21 @@ RENAME = {("generation", "average_cm3_s"): "generation_average_cm3_s",
 
 
 def var_name(block: str, key: str) -> str:
-    """The Dataset / CSV variable name of a JSON key ("tau_s.srh" -> "tau_srh_s")."""
+    """The Dataset / CSV variable name of a JSON key ("tau_s.srh" -> "tau_srh_s").
+
+    Parameters
+    ----------
+    block : str
+        The output block ("steady_state", "implied_jv", ...).
+    key : str
+        The key within the block, dotted when nested ("tau_s.srh").
+
+    Returns
+    -------
+    str
+        The variable name (`RENAME` where the key alone would be unclear or clash; ``jv_``
+        before the figures of the implied J-V).
+    """
     if (block, key) in RENAME:
         return RENAME[(block, key)]
     if block == "implied_jv":              # figures of the J-V curve: jv_vmp_V, jv_ff, ...
@@ -49,7 +63,20 @@ def var_name(block: str, key: str) -> str:
 
 
 def flat_block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
-    """Flatten a to_dict() block to arrays of length n ("tau_s.srh" for nested keys)."""
+    """Flatten a to_dict() block to arrays of length n ("tau_s.srh" for nested keys).
+
+    Parameters
+    ----------
+    d : Mapping[str, Any]
+        A block, nested one level at most; numbers, None (-> NaN), strings or arrays.
+    n : int
+        Number of points [-].
+
+    Returns
+    -------
+    dict[str, numpy.ndarray]
+        1-D arrays of length n: float for numbers, object for strings.
+    """
     flat: dict[str, Any] = {}
     for k, v in d.items():
         if isinstance(v, Mapping):
@@ -73,10 +100,18 @@ def flat_block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
 class Result:
     """The outcome of a scenario: a labelled Dataset plus single-point details.
 
-    dataset: one dimension per swept key (none for a single point); every
-        JSON quantity as a variable with a `units` attribute
-    details: for a single point, the core objects (equilibrium, generation,
-        steady state, ...) behind the numbers, for curves and plots
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario that was run.
+    dataset : xarray.Dataset
+        One dimension per swept key (none for a single point); every JSON quantity as a
+        variable with a `units` attribute.
+    details : Mapping[str, Any], optional
+        For a single point, the core objects (equilibrium, generation, steady state, ...)
+        behind the numbers, for curves and plots.
+    warnings : tuple of str, optional
+        The run's warnings (physics notes), in order.
     """
 
     scenario: Scenario
@@ -89,26 +124,55 @@ class Result:
 
     @property
     def is_sweep(self) -> bool:
+        """True when the scenario sweeps at least one key."""
         return bool(self.scenario.sweep)
 
     def to_dataset(self) -> xr.Dataset:
+        """The labelled Dataset.
+
+        Returns
+        -------
+        xarray.Dataset
+            `dataset` itself (not a copy).
+        """
         return self.dataset
 
     def to_dataframe(self):
-        """A pandas DataFrame: one row per grid point (a single point: one row), one column per
-        swept key (underscore names, the last key varying fastest) then one per variable; the
-        same table as result.csv."""
+        """The result as a tidy table, the same table as result.csv.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per grid point (a single point: one row), one column per swept key
+            (underscore names, the last key varying fastest) then one per variable.
+        """
         import pandas as pd
         return pd.DataFrame(tidy_columns(self.dataset))
 
     def plot(self, kind: str | None = None, ax=None):
-        """Draw the figure that fits the result and return its Axes (an array for several panels).
+        """Draw the figure that fits the result and return its Axes.
 
-        kind: None picks: a single point -> "lifetime" (the lifetime curve; "band" without
-        one); one swept key -> "detectivity" for a detector with a source, else "lines"; two
-        swept keys -> "map".  Others: "jv", "generation", "band", "noise", "dark_current".
-        ax: a matplotlib Axes to draw into (a sequence of Axes for several panels); None
-        makes a new figure.
+        Parameters
+        ----------
+        kind : str or None, optional
+            None picks: a single point -> "lifetime" (the lifetime curve; "band" without
+            one); one swept key -> "detectivity" for a detector with a source, else "lines";
+            two swept keys -> "map".  Others: "jv", "generation", "band", "noise",
+            "dark_current", "responsivity", "nep".
+        ax : matplotlib.axes.Axes or sequence of Axes, optional
+            The Axes to draw into (a sequence of Axes for several panels); None makes a new
+            figure.
+
+        Returns
+        -------
+        matplotlib.axes.Axes or numpy.ndarray
+            The Axes drawn into (an array for several panels).
+
+        Raises
+        ------
+        InputError
+            For a kind that does not fit the result, or a sweep of three or more keys
+            without a kind.
         """
         from .. import plots
         from ..report import point_curves
@@ -190,7 +254,15 @@ class Result:
                 + "".join(rows) + "</table></details></div>")
 
     def to_dict(self) -> dict:
-        """Nested JSON-ready blocks (DESIGN.md keys); null where a quantity does not apply."""
+        """Nested JSON-ready blocks (DESIGN.md keys); null where a quantity does not apply.
+
+        Returns
+        -------
+        dict
+            ``title``, ``version``, ``sweep`` (the swept values by dotted key, for a sweep),
+            one entry per output block, and ``warnings`` when there are any; numbers in the
+            unit of their name's suffix, NaN as None.
+        """
         out: dict[str, Any] = {"title": self.scenario.title, "version": __version__}
         if self.is_sweep:
             out["sweep"] = {a.key: a.values.tolist() for a in self.scenario.sweep}
@@ -222,7 +294,24 @@ def _jsonable(a):
 
 
 def var_attrs(name: str, values: np.ndarray, block: str | None = None, key: str | None = None) -> dict:
-    """CF attributes of a Dataset variable: long_name, units (numbers only), block and key."""
+    """CF attributes of a Dataset variable: long_name, units (numbers only), block and key.
+
+    Parameters
+    ----------
+    name : str
+        The variable name (its suffix gives the unit).
+    values : numpy.ndarray
+        The values (their dtype decides whether a unit applies).
+    block : str or None, optional
+        The output block the variable comes from.
+    key : str or None, optional
+        Its key within the block.
+
+    Returns
+    -------
+    dict
+        The attributes.
+    """
     attrs = {"long_name": long_name(name)}
     if np.asarray(values).dtype.kind not in "bOUS":
         attrs["units"] = unit_of(name)
@@ -232,7 +321,20 @@ def var_attrs(name: str, values: np.ndarray, block: str | None = None, key: str 
 
 
 def coord_attrs(key: str, values: np.ndarray) -> dict:
-    """CF attributes of the coordinate of a swept key: long_name, units (numbers), scenario_key."""
+    """CF attributes of the coordinate of a swept key: long_name, units (numbers), scenario_key.
+
+    Parameters
+    ----------
+    key : str
+        The dotted scenario key.
+    values : numpy.ndarray
+        The swept values.
+
+    Returns
+    -------
+    dict
+        The attributes.
+    """
     attrs = {"long_name": long_name(key)}
     if np.asarray(values).dtype.kind in "fiu":
         attrs["units"] = unit_of(key)
@@ -241,7 +343,22 @@ def coord_attrs(key: str, values: np.ndarray) -> dict:
 
 
 def labelled_dataset(blocks, shape, axes) -> xr.Dataset:
-    """Blocks of flat arrays -> a Dataset over the sweep axes (a "point" dimension without axes)."""
+    """Blocks of flat arrays -> a Dataset over the sweep axes (a "point" dimension without axes).
+
+    Parameters
+    ----------
+    blocks : Mapping[str, Mapping[str, numpy.ndarray]]
+        Output blocks of flat arrays in the C order of the grid.
+    shape : sequence of int
+        The grid shape, one length per axis.
+    axes : sequence of SweepAxis
+        The sweep axes (objects with ``key`` and ``values``); empty for no grid.
+
+    Returns
+    -------
+    xarray.Dataset
+        One variable per block key (`var_name`) with CF attributes, one coordinate per axis.
+    """
     dims = [dim_name(a.key) for a in axes] if axes else ["point"]
     shape = list(shape) if axes else [-1]
     data_vars = {}
@@ -257,8 +374,16 @@ def labelled_dataset(blocks, shape, axes) -> xr.Dataset:
 
 
 def tidy_attrs(ds: xr.Dataset) -> None:
-    """Make every variable of `ds` carry CF attributes, in place: a long_name everywhere, no
-    units on strings and flags (booleans), units from the name elsewhere when missing."""
+    """Make every variable of `ds` carry CF attributes, in place.
+
+    A long_name everywhere, no units on strings and flags (booleans), units from the name
+    elsewhere when missing.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        The Dataset, changed in place.
+    """
     for name, var in ds.variables.items():
         attrs = var.attrs
         attrs.setdefault("long_name", long_name(attrs.get("scenario_key", name)))
@@ -271,7 +396,14 @@ def tidy_attrs(ds: xr.Dataset) -> None:
 def add_attrs(ds: xr.Dataset, sc: Scenario, history: str | None = None) -> None:
     """Global attributes: Conventions, title, source, history, the original and the effective scenario.
 
-    history: the line to record (default: the time and the command line of this process)
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        The Dataset, changed in place.
+    sc : Scenario
+        The scenario that was run.
+    history : str or None, optional
+        The line to record (default: the time and the command line of this process).
     """
     created = _dt.datetime.now(_dt.timezone.utc).isoformat(timespec="seconds")
     ds.attrs.update({
@@ -289,7 +421,13 @@ def add_attrs(ds: xr.Dataset, sc: Scenario, history: str | None = None) -> None:
 
 
 def command_line() -> str:
-    """This process's command line, as the ``history`` attribute records it."""
+    """This process's command line, as the ``history`` attribute records it.
+
+    Returns
+    -------
+    str
+        The shell-quoted command line (``optogen ...``), or "python (optogen.run)" without one.
+    """
     import shlex
     argv = list(sys.argv)
     if argv and Path(argv[0]).name in ("optogen", "__main__.py", "cli.py"):
@@ -300,9 +438,17 @@ def command_line() -> str:
 def tidy_columns(ds: xr.Dataset) -> dict[str, np.ndarray]:
     """The tidy table of a Dataset as flat columns, built from arrays (no loop over rows).
 
-    One entry per dimension coordinate (the grid values, C order: the last dimension varies
-    fastest) then one per data variable, each a 1-D array of the grid size; a scalar
-    variable is repeated on every row.
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        The result Dataset.
+
+    Returns
+    -------
+    dict[str, numpy.ndarray]
+        One entry per dimension coordinate (the grid values, C order: the last dimension
+        varies fastest) then one per data variable, each a 1-D array of the grid size; a
+        scalar variable is repeated on every row.
     """
     dims = list(ds.dims)
     shape = tuple(ds.sizes[d] for d in dims)
@@ -367,16 +513,24 @@ def _hyperslabs(start: int, stop: int, shape: Sequence[int]):
 class ChunkStore:
     """A sweep written chunk by chunk to a chunked, zlib-compressed NetCDF4 file (h5netcdf).
 
-    path: the file to create (replaced if it exists)
-    axes: the sweep axes (objects with ``key`` and ``values``, e.g. `SweepAxis`) in the C order
-        of the flat grid the chunks come in (slow keys first, then fast keys)
-    names_units: {block: {key: units}} of the variables to expect, or None; a units value of
-        None takes the unit from the name (`unit_of`).  A block or key met in `write` that is
-        not listed is added then; a variable never written stays at its fill value (NaN, 0
-        or an empty string)
-    order: the dotted keys in the scenario's axis order; `close` returns the Dataset
-        transposed to it (default: the order of `axes`)
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The file to create (replaced if it exists).
+    axes : sequence of SweepAxis
+        The sweep axes (objects with ``key`` and ``values``, e.g. `SweepAxis`) in the C order
+        of the flat grid the chunks come in (slow keys first, then fast keys).
+    names_units : Mapping[str, Mapping[str, str or None]] or None, optional
+        {block: {key: units}} of the variables to expect, or None; a units value of None
+        takes the unit from the name (`unit_of`).  A block or key met in `write` that is not
+        listed is added then; a variable never written stays at its fill value (NaN, 0 or an
+        empty string).
+    order : sequence of str or None, optional
+        The dotted keys in the scenario's axis order; `close` returns the Dataset transposed
+        to it (default: the order of `axes`).
 
+    Notes
+    -----
     ``write(offset, blocks)`` stores a chunk: `blocks` = {block: {key: 1-D array}} as
     `optogen.pipeline.evaluate` returns them, the values of the flat grid points
     [offset, offset + n).  The range is written as hyperslabs of the N-d arrays, so only the
@@ -441,7 +595,21 @@ class ChunkStore:
         return v
 
     def write(self, offset: int, blocks: Mapping[str, Mapping[str, np.ndarray]]) -> None:
-        """Store the chunk of flat grid points [offset, offset + n) (n = length of the arrays)."""
+        """Store the chunk of flat grid points [offset, offset + n) (n = length of the arrays).
+
+        Parameters
+        ----------
+        offset : int
+            Flat C-order index of the chunk's first grid point [-].
+        blocks : Mapping[str, Mapping[str, numpy.ndarray]]
+            {block: {key: 1-D array of length n}} as `optogen.pipeline.evaluate` returns them;
+            blocks whose name starts with "_" are skipped.
+
+        Raises
+        ------
+        ValueError
+            When the chunk lies outside the grid (a programming error, not an input error).
+        """
         for block, vals in blocks.items():
             if block.startswith("_"):
                 continue
@@ -468,7 +636,18 @@ class ChunkStore:
             self.path.unlink(missing_ok=True)
 
     def close(self, attrs: Mapping[str, Any] | None = None) -> xr.Dataset:
-        """Write the global attributes, close the file and open it lazily (scenario axis order)."""
+        """Write the global attributes, close the file and open it lazily (scenario axis order).
+
+        Parameters
+        ----------
+        attrs : Mapping[str, Any] or None, optional
+            Global attributes to write (e.g. those of `add_attrs`).
+
+        Returns
+        -------
+        xarray.Dataset
+            The file opened with xarray (data read on access), transposed to `order`.
+        """
         for k, val in (attrs or {}).items():
             self._file.attrs[k] = val
         self._file.attrs["optogen_storage"] = "chunked NetCDF4 written chunk by chunk (optogen ChunkStore)"

@@ -38,9 +38,27 @@ RESISTIVITY_REFERENCE_K = 300.0
 class Setup:
     """Everything built once from a scenario (fixed slow keys).
 
-    tables: quantities that vary only with temperature, computed once for every temperature
-        of a group of points and reused by each chunk (`tabulate_generation`); filled in
-        place, not part of the identity of the set-up
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario the set-up was built from.
+    material : materials.Material
+        The absorber material (built-in, tweaked or custom).
+    thickness_cm : float
+        Absorber thickness [cm].
+    spectrum : light.Spectrum or None
+        The incident light at the scenario's scaling, or at unit scaling of a swept scaling
+        key; None without a [light] table.
+    background : light.Spectrum or None
+        The blackbody background seen by the absorber; None without a [background] table.
+    recombination : recombination.Recombination or None
+        The recombination settings; None for a dark run without a [recombination] table.
+    optics : dict
+        The [optics] table of the scenario.
+    tables : dict
+        Quantities that vary only with temperature, computed once for every temperature of a
+        group of points and reused by each chunk (`tabulate_generation`); filled in place,
+        not part of the identity of the set-up.
     """
 
     scenario: Scenario
@@ -56,8 +74,23 @@ class Setup:
 def build(sc: Scenario, unit_scaling: str | None = None) -> Setup:
     """Build material, spectrum, background and recombination from a scenario.
 
-    unit_scaling: a [light] scaling key that is swept; the spectrum is then
-        built at value 1 of that key and the sweep multiplies it [-]
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario (validated again here: one built by hand gets the same checks as a file).
+    unit_scaling : str or None, optional
+        A [light] scaling key that is swept; the spectrum is then built at value 1 of that key
+        and the sweep multiplies it [-].
+
+    Returns
+    -------
+    Setup
+        Material, thickness, spectrum, background, recombination and optics of the scenario.
+
+    Raises
+    ------
+    InputError
+        For a missing material or thickness, or any value outside the schema.
     """
     validate(sc.data)                 # a Scenario built by hand gets the same checks as a file
     ab = sc.section("absorber")
@@ -127,9 +160,27 @@ def _check_filter_band(sc: Scenario, material, lo_nm: float, hi_nm: float) -> No
 
 
 def check(sc: Scenario) -> Setup:
-    """Everything `optogen check` can check without the physics: the schema (kinds, ranges,
-    rules, every swept value), the model names, the material, light, background, recombination
-    and detector records, and the light ceiling at the brightest swept value."""
+    """Everything `optogen check` can check without the physics.
+
+    The schema (kinds, ranges, rules, every swept value), the model names, the material, light,
+    background, recombination and detector records, and the light ceiling at the brightest
+    swept value.
+
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario to check.
+
+    Returns
+    -------
+    Setup
+        The set-up `build` makes (at unit scaling of a swept light scaling key).
+
+    Raises
+    ------
+    InputError
+        At the first fault found.
+    """
     unit = swept_light_scaling(sc)
     setup = build(sc, unit)
     if unit is not None and setup.spectrum is not None:
@@ -139,7 +190,23 @@ def check(sc: Scenario) -> Setup:
 
 
 def swept_light_scaling(sc: Scenario) -> str | None:
-    """The [light] scaling key that is swept (suns, irradiance_W_m2, ...), or None."""
+    """The [light] scaling key that is swept (suns, irradiance_W_m2, ...), or None.
+
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario.
+
+    Returns
+    -------
+    str or None
+        The key without its ``light.`` prefix, or None when no scaling key is swept.
+
+    Raises
+    ------
+    InputError
+        When more than one light scaling key is swept.
+    """
     scaling = [a.key.split(".")[1] for a in sc.sweep if a.key in FAST_KEYS and a.key.startswith("light.")]
     if len(scaling) > 1:
         raise InputError("sweep", ", ".join(scaling), "at most one light scaling key swept at a time")
@@ -163,7 +230,20 @@ def _scaling_key(sc: Scenario) -> str:
 
 
 def check_irradiance(sc: Scenario, irradiance_W_m2) -> None:
-    """Incident irradiance at most schema.IRRADIANCE_MAX_W_m2 (1e4 suns), whatever sets it."""
+    """Incident irradiance at most schema.IRRADIANCE_MAX_W_m2 (1e4 suns), whatever sets it.
+
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario (names the key that sets the light level in the error).
+    irradiance_W_m2 : float or array_like
+        Incident irradiance [W m^-2].
+
+    Raises
+    ------
+    InputError
+        Where the irradiance exceeds the enforced domain (or is NaN).
+    """
     irr = np.asarray(irradiance_W_m2, dtype=float)
     bad = ~(irr <= schema.IRRADIANCE_MAX_W_m2)
     if np.any(bad):
@@ -175,6 +255,22 @@ def check_irradiance(sc: Scenario, irradiance_W_m2) -> None:
 
 
 def check_doping_sum(nd, na, field: str) -> None:
+    """Total dopant density N_D + N_A at most schema.DOPING_MAX_cm3 (the enforced doping domain).
+
+    Parameters
+    ----------
+    nd : float or array_like
+        Donor density [cm^-3].
+    na : float or array_like
+        Acceptor density [cm^-3].
+    field : str
+        The dotted scenario key named in the error.
+
+    Raises
+    ------
+    InputError
+        Where the sum exceeds the domain (or is NaN).
+    """
     total = np.asarray(nd, dtype=float) + np.asarray(na, dtype=float)
     bad = ~(total <= schema.DOPING_MAX_cm3)
     if np.any(bad):
@@ -184,7 +280,23 @@ def check_doping_sum(nd, na, field: str) -> None:
 
 
 def doping_of(setup: Setup, values: Mapping[str, np.ndarray]):
-    """Donor and acceptor densities [cm^-3] from the scenario or the swept values."""
+    """Donor and acceptor densities from the scenario or the swept values.
+
+    A resistivity input is converted at RESISTIVITY_REFERENCE_K (300 K), with incomplete
+    ionisation (`transport.match_resistivity_cm3`) unless the scenario turns it off.
+
+    Parameters
+    ----------
+    setup : Setup
+        The set-up (scenario and material).
+    values : Mapping[str, numpy.ndarray]
+        Swept values by dotted scenario key; a key absent here takes its scenario value.
+
+    Returns
+    -------
+    nd, na : numpy.ndarray
+        Donor and acceptor densities [cm^-3].
+    """
     sc = setup.scenario
     ab = sc.section("absorber")
     if "resistivity_ohm_cm" in ab:
@@ -202,6 +314,18 @@ def doping_of(setup: Setup, values: Mapping[str, np.ndarray]):
 
 
 def equilibrium_options(setup: Setup) -> dict:
+    """The keyword arguments of `equilibrium.equilibrium` that the scenario sets.
+
+    Parameters
+    ----------
+    setup : Setup
+        The set-up (scenario and recombination).
+
+    Returns
+    -------
+    dict
+        donor, acceptor (species names), ni_model, bgn_model and incomplete_ionisation.
+    """
     ab = setup.scenario.section("absorber")
     return dict(donor=ab.get("donor_species"), acceptor=ab.get("acceptor_species"), ni_model=ab.get("ni_model"),
                 bgn_model=getattr(setup.recombination, "bgn_model", None),
@@ -209,12 +333,30 @@ def equilibrium_options(setup: Setup) -> dict:
 
 
 def generation_of(setup: Setup, spectrum, T, depth_cm=None, profile: bool = False):
-    """Generation of `spectrum` over temperatures T (1-D array) [per `generation.Generation`].
+    """Generation of `spectrum` over temperatures T.
 
-    Returns (g, rows): g over the distinct temperatures, rows[i] the row of g for T[i].
     Computed once per distinct temperature: a table made by `tabulate_generation` for the
     group is reused when it holds every T (no depth mesh, no profile asked).
-    profile: also compute G(x) on the automatic depth mesh (single points, plots).
+
+    Parameters
+    ----------
+    setup : Setup
+        The set-up (material, thickness, optics).
+    spectrum : light.Spectrum
+        The light or the background.
+    T : array_like
+        Temperatures, 1-D [K].
+    depth_cm : array_like or None, optional
+        Depths at which to compute G(x) [cm]; None for no depth mesh.
+    profile : bool, optional
+        Also compute G(x) on the automatic depth mesh (single points, plots).
+
+    Returns
+    -------
+    g : generation.Generation
+        Generation over the distinct temperatures (units per `generation.Generation`).
+    rows : numpy.ndarray
+        rows[i] is the row of g for T[i] [-].
     """
     T = np.asarray(T, dtype=float)
     Tu, inv = np.unique(T, return_inverse=True)
@@ -236,8 +378,18 @@ def generation_of(setup: Setup, spectrum, T, depth_cm=None, profile: bool = Fals
 
 
 def tabulate_generation(setup: Setup, T) -> None:
-    """Compute the generation of the light and the background once for every temperature in T
-    (the temperatures of a whole group of points) and keep it in `setup.tables` [-]."""
+    """Compute the generation of the light and the background once for every temperature in T.
+
+    The temperatures are those of a whole group of points; the result is kept in
+    `setup.tables`.
+
+    Parameters
+    ----------
+    setup : Setup
+        The set-up; its `tables` are filled in place.
+    T : array_like
+        Temperatures [K].
+    """
     Tu = np.unique(np.asarray(T, dtype=float))
     for spectrum in (setup.spectrum, setup.background):
         if spectrum is not None:
@@ -250,15 +402,48 @@ def _table_key(setup: Setup, spectrum) -> str | None:
 
 
 def optical_csv(sc: Scenario):
+    """The path of the scenario's own optical-constants CSV file, or None.
+
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario (``absorber.optical_csv``, relative to its directory).
+
+    Returns
+    -------
+    pathlib.Path or None
+        The file's path, or None when the scenario names none.
+    """
     p = sc.get("absorber.optical_csv")
     return None if p is None else sc.base_dir / p
 
 
 def mobilities(setup, T, nd, na, n, p):
-    """(mu_e, mu_h) [cm^2/Vs]; NaN where n or p is NaN (an unconverged point).
+    """Electron and hole mobilities; NaN where n or p is NaN (an unconverged point).
 
     A material without mobilities for its model raises one InputError naming the
     missing `absorber.custom.mobility_*` field and what needs it (`transport.missing_mobility_record`).
+
+    Parameters
+    ----------
+    setup : Setup
+        The set-up (material).
+    T : array_like
+        Temperature [K].
+    nd, na : array_like
+        Donor and acceptor densities [cm^-3].
+    n, p : array_like
+        Electron and hole densities [cm^-3].
+
+    Returns
+    -------
+    mu_e, mu_h : numpy.ndarray
+        Electron and hole mobilities [cm^2 V^-1 s^-1].
+
+    Raises
+    ------
+    InputError
+        When the material has no mobility record for its model.
     """
     missing = missing_mobility_record(setup.material)
     if missing:

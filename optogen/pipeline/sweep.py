@@ -46,14 +46,33 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
         scheduler: str | None = None, chunk_size: int | None = None, store=None) -> Result:
     """Run a scenario: a single point, or every point of its sweep grid.
 
-    progress: show a tqdm bar (None: only on a terminal, after about 1 s) [-]
-    workers: run the chunks on a local dask cluster with this many workers [-]
-    scheduler: address of an existing dask.distributed scheduler [-]
-    chunk_size: points per chunk (default from [solver] chunk_size or 100000) [-]
-    store: a NetCDF4 file to stream the sweep into chunk by chunk (`result.ChunkStore`), so
+    Parameters
+    ----------
+    scenario : Scenario
+        The scenario to run.
+    progress : bool or None, optional
+        Show a tqdm bar (None: only on a terminal, after about 1 s).
+    workers : int or None, optional
+        Run the chunks on a local dask cluster with this many workers [-].
+    scheduler : str or None, optional
+        Address of an existing dask.distributed scheduler.
+    chunk_size : int or None, optional
+        Points per chunk (default from [solver] chunk_size or 100000) [-].
+    store : str or pathlib.Path or None, optional
+        A NetCDF4 file to stream the sweep into chunk by chunk (`result.ChunkStore`), so
         that memory is bounded by a chunk; a sweep of more than `result.STREAM_THRESHOLD`
         points is always streamed (to a temporary file, removed when Python exits, unless
         `store` is given).  The Result's Dataset then reads the file lazily.
+
+    Returns
+    -------
+    Result
+        The labelled Dataset, a single point's details and the run's warnings.
+
+    Raises
+    ------
+    InputError
+        For a scenario value outside the schema, or bad ``workers``.
     """
     sc = scenario
     if not sc.sweep:
@@ -170,7 +189,19 @@ def _remove(path: Path) -> None:
 
 
 def add_background_limit(ds: xr.Dataset, setup: Setup) -> None:
-    """Record the background-limit temperature for a detector looking at a warm background."""
+    """Record the background-limit temperature for a detector looking at a warm background.
+
+    Nothing is done without a [detector], a [background] and recombination settings.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        The result Dataset; gains the attributes and scalar variables
+        ``background_limit_temperature_K`` [K] (NaN when not found) and
+        ``background_limit_note``.
+    setup : Setup
+        The set-up of the run (`point.background_limit` runs on it).
+    """
     sc = setup.scenario
     if "detector" not in sc.data or "background" not in sc.data or setup.recombination is None:
         return
@@ -206,8 +237,22 @@ def _dask_client(workers, scheduler):
 def evaluate_chunk(setup: Setup, fast, start: int, stop: int) -> dict[str, dict[str, np.ndarray]]:
     """Every output block for the points start..stop-1 (flat C order) of the fast-key grid.
 
-    fast: the swept fast keys as (key, values) pairs in grid order [units of each key]; the
-    values of each point come from its flat index, so a chunk needs no copy of the grid.
+    Parameters
+    ----------
+    setup : Setup
+        The set-up of the group of points.
+    fast : sequence of (str, numpy.ndarray)
+        The swept fast keys as (key, values) pairs in grid order [units of each key]; the
+        values of each point come from its flat index, so a chunk needs no copy of the grid.
+    start : int
+        Flat index of the first point [-].
+    stop : int
+        Flat index one past the last point [-].
+
+    Returns
+    -------
+    dict[str, dict[str, numpy.ndarray]]
+        The output blocks of `point.evaluate` for the stop - start points.
     """
     if not fast:
         return evaluate(setup, {}, stop - start)

@@ -13,7 +13,7 @@ from optogen.cli import add_analyse_parser
 from optogen.analysis.data import read_lifetime_csv, read_record_csv
 from optogen.errors import InputError
 
-DEMO = Path(__file__).resolve().parents[1] / "scenarios" / "analysis"
+DEMO = Path(__file__).resolve().parents[2] / "scenarios" / "analysis"
 
 
 def _write(tmp_path, name, text):

@@ -166,3 +166,42 @@ def test_iron_round_trip_recovers_the_density():
                                          np.full(dn.size, 0.01), np.full(dn.size, 0.01))
     assert abs(res.density_cm3 - 1.2e11) <= 3 * res.density_std_cm3
     assert res.density_std_cm3 < 0.05 * 1.2e11
+
+
+def test_srh_basis_and_surface_term_against_the_closed_forms():
+    # without narrowing (shift 0): n p - n0 p0 = dn (n0 + p0 + dn), so (Shockley & Read 1952; Hall 1952)
+    #   tau_SRH = [tau_p0 (n0 + n1 + dn) + tau_n0 (p0 + p1 + dn)] / (n0 + p0 + dn),
+    #   n1 = Nc exp((E_t - E_g)/kT), p1 = Nv exp(-E_t/kT);
+    # and the surface term (Kane & Swanson 1985, from memory) J0 (n0 + p0 + dn) / (q n0 p0 W)
+    smp = sample(SI, 300.0, 1e15, 0.0, 0.018, Recombination(bgn_model="none"))
+    dn = np.logspace(11, 17, 13)
+    m = mechanisms(smp, dn)
+    assert np.all(m.shift == 0.0)
+    kT = 8.617333262e-5 * 300.0                        # Boltzmann constant, CODATA 2018 [eV/K]
+    eq = smp.eq
+    eg, nc, nv = float(eq.effective_gap_eV), float(eq.nc_cm3), float(eq.nv_cm3)
+    n0, p0 = smp.n0_cm3, smp.p0_cm3
+    levels = np.array([0.2, 0.56, 0.95])
+    A, B = m.srh_basis(levels)
+    for i, et in enumerate(levels):
+        n1, p1 = nc * np.exp((et - eg) / kT), nv * np.exp(-et / kT)
+        hand = (1e-3 * (n0 + n1 + dn) + 2e-4 * (p0 + p1 + dn)) / (n0 + p0 + dn)
+        assert np.allclose(2e-4 * A[i] + 1e-3 * B[i], hand, rtol=1e-8)
+        assert np.allclose(1.0 / m.inv_tau_srh_s(2e-4, 1e-3, et), hand, rtol=1e-10)
+    q = 1.602176634e-19                                # elementary charge, CODATA 2018 (exact) [C]
+    assert np.allclose(m.x_j0, 1e-15 * (n0 + p0 + dn) / (q * n0 * p0 * 0.018), rtol=1e-10)
+
+
+def test_implied_voc_of_a_constant_lifetime_against_the_closed_form():
+    # U = dn/tau with tau constant: open circuit at dn_oc = J_gen tau/(q W); with Boltzmann statistics and no
+    # narrowing, Voc = kT/q ln((n0 + dn_oc)(p0 + dn_oc)/(n0 p0)) (analytic; q, k_B from CODATA 2018).  The
+    # splitting of steady_state.state_at uses Fermi-Dirac statistics: at 1.4e16 cm^-3 << Nc the difference is
+    # below 1e-5 V (n/Nc ~ 5e-4)
+    smp = sample(SI, 300.0, 1e15, 0.0, 0.018, Recombination(bgn_model="none"))
+    from optogen.analysis.implied import GRID_CM3
+    tau, jgen, q, kT = 1e-3, 40.0, 1.602176634e-19, 8.617333262e-5 * 300.0
+    dn_oc = jgen * 1e-3 * tau / (q * 0.018)
+    voc_hand = kT * np.log((smp.n0_cm3 + dn_oc) * (smp.p0_cm3 + dn_oc) / (smp.n0_cm3 * smp.p0_cm3))
+    imp = implied_from_rates(smp, GRID_CM3 / tau, jgen)
+    assert imp.delta_n_oc_cm3[0] == pytest.approx(dn_oc, rel=1e-4)
+    assert imp.voc_V[0] == pytest.approx(voc_hand, abs=2e-5)

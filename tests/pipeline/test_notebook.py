@@ -3,8 +3,6 @@
 Expected sizes are counted by hand from the scenario (rows = product of the swept sizes:
 analytic); values are compared with the Dataset they come from, never with stored numbers.
 """
-from pathlib import Path
-
 import numpy as np
 import pytest
 from matplotlib.axes import Axes
@@ -13,7 +11,6 @@ from matplotlib.figure import Figure
 import optogen
 from optogen import plots
 
-ROOT = Path(__file__).resolve().parents[1]
 BASE = """
 title = "notebook test"
 [absorber]

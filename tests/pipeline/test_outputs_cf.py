@@ -31,7 +31,8 @@ from optogen import cli, report
 from optogen.pipeline.result import ChunkStore, _hyperslabs, labelled_dataset
 from optogen.scenario import HALF_POWER_UNITS
 
-ROOT = Path(__file__).resolve().parents[1]
+from conftest import ROOT
+
 NAME = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")         # CF 1.10 section 2.3
 
 pint = pytest.importorskip("pint")

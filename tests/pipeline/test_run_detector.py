@@ -4,7 +4,6 @@ Every scenario here is invented for the test.  Expected values are analytic
 identities, hc/q from scipy.constants, or common practice, as marked.
 """
 import json
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -15,7 +14,8 @@ from optogen import detector as det
 from optogen.cli import main
 from optogen.errors import InputError
 
-ROOT = Path(__file__).resolve().parents[1]
+from conftest import ROOT
+
 Q = sc.e
 HC_Q_UM = sc.h * sc.c / sc.e * 1e6          # hc/q = 1.2398 V um (scipy.constants, CODATA)
 

@@ -4,7 +4,6 @@ Scenarios are invented for the test; expected values are analytic identities or 
 practice, as marked.
 """
 import json
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -14,7 +13,8 @@ from optogen import constants
 from optogen.cli import main
 from optogen.errors import InputError
 
-ROOT = Path(__file__).resolve().parents[1]
+from conftest import ROOT
+
 VIOLET = (ROOT / "scenarios" / "violet_laser_profile.toml").read_text()
 
 # A thin, well-passivated n-type wafer: L = sqrt(D tau) ~ 1 mm against W = 100 um.

@@ -1210,8 +1210,13 @@ def splitting_falls(prep, x_oc, levels=None):
 
     Returns
     -------
-    ndarray (P,) of bool: the slope d(eta_n + eta_p)/dx - d shift/dx < 0, the levels' slope
-    analytic and the narrowing's from `_shift_slope` (the test `_mpp_flat` applies).
+    ndarray (P,) of bool
+        True where the slope d(eta_n + eta_p)/dx - d shift/dx < 0 [-], the levels' slope
+        analytic and the narrowing's from `_shift_slope` (the test `_mpp_flat` applies).
+
+    References
+    ----------
+    T. M. Rice, Solid State Phys. 32, 1 (1977) (the electron-hole liquid; from memory).
     """
     x_oc = np.asarray(x_oc, dtype=float)
     if not prep.inj_bgn:
@@ -1374,6 +1379,16 @@ def solve(material, eq, recombination: Recombination, generation_cm3_s, thicknes
     -------
     SteadyState
         Every field of the broadcast shape of eq, G and W (0-d arrays for one point).
+
+    Raises
+    ------
+    InputError
+        For G < 0, W <= 0, or shapes that do not broadcast.
+
+    References
+    ----------
+    M. Dowell and P. Jarratt, BIT 11, 168 (1971), doi:10.1007/BF01934364 (the Illinois
+    method; DOI from memory).
     """
     G = _check_inputs(generation_cm3_s, thickness_cm)
     shape = _shape(eq, G, thickness_cm)
@@ -1463,7 +1478,8 @@ def solve_chunked(material, recombination: Recombination, T_K, donors_cm3, accep
     Returns
     -------
     dict
-        Field name -> array of the broadcast shape (implied_ff is not computed).
+        Field name -> array of the broadcast shape (implied_ff is not computed), in the unit
+        of the field's suffix.
     """
     from .equilibrium import equilibrium
     args = [np.asarray(a, dtype=float) for a in (T_K, donors_cm3, acceptors_cm3, generation_cm3_s,
@@ -1561,6 +1577,18 @@ def implied_jv(material, eq, recombination: Recombination, thickness_cm, photocu
     ImpliedJV
         voltage_V, current_mA_cm2 (..., M) [V], [mA cm^-2]; jsc_mA_cm2, voc_V, vmp_V, jmp_mA_cm2,
         pmax_mW_cm2, ff, efficiency [mA cm^-2, V, V, mA cm^-2, mW cm^-2, -, -].
+
+    Raises
+    ------
+    InputError
+        For J_gen <= 0, W <= 0, a negative voltage, or a `state` that is not the steady
+        state of these inputs.
+
+    References
+    ----------
+    The implied J-V (the quasi-Fermi-level splitting as the voltage, J = J_gen - q W U) is
+    common practice in lifetime-based cell analysis; the splitting follows P. Wurfel, J. Phys. C
+    15, 3967 (1982), doi:10.1088/0022-3719/15/18/012 (from memory).
     """
     jg = np.asarray(photocurrent_mA_cm2, dtype=float)
     check_range("generation.photocurrent_mA_cm2", jg, 0.0, None, low_open=True, unit="mA cm^-2")

@@ -13,8 +13,10 @@ import atexit
 import itertools
 import math
 import os
+import queue
 import sys
 import tempfile
+import threading
 from pathlib import Path
 
 import numpy as np
@@ -109,9 +111,11 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     merged: dict[str, dict[str, np.ndarray]] = {}     # filled in place: no second copy of the grid
     chunk_store = _open_store(store, total, slow + fast, axes)
 
+    writer = _BackgroundWriter(chunk_store) if chunk_store is not None else None
+
     def keep(offset, part):
-        if chunk_store is not None:
-            chunk_store.write(offset, part)
+        if writer is not None:
+            writer.put(offset, part)
             return
         for block, vals in part.items():
             for k, v in vals.items():
@@ -136,7 +140,11 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
             for start, part in _group_chunks(setup, fast, n_fast, chunk, client):
                 keep(g * n_fast + start, part)
                 bar.update(1)
+        if writer is not None:
+            writer.finish()
     except BaseException:
+        if writer is not None:
+            writer.stop()
         if chunk_store is not None:
             chunk_store.abandon()
         raise
@@ -167,6 +175,60 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     if not slow:
         add_background_limit(ds, setup)
     return Result(sc, ds, {}, tuple(warnings))
+
+
+class _BackgroundWriter:
+    """Writes streamed chunks in a second thread while the next chunk is computed.
+
+    HDF5 compresses with the GIL released, so writing overlaps the computation (the solver's
+    numpy work); at most `depth` chunks wait, so memory stays bounded.  Chunks are written in
+    the order they were put.  An error in the writer is raised again in the caller.
+
+    Parameters
+    ----------
+    store : ChunkStore
+        Where the chunks go.
+    depth : int
+        Most chunks waiting to be written [-].
+    """
+
+    def __init__(self, store, depth: int = 2):
+        self._store = store
+        self._queue = queue.Queue(maxsize=depth)
+        self._error: BaseException | None = None
+        self._thread = threading.Thread(target=self._run, name="optogen-writer", daemon=True)
+        self._thread.start()
+
+    def _run(self):
+        while True:
+            item = self._queue.get()
+            if item is None:
+                return
+            if self._error is None:
+                try:
+                    self._store.write(*item)
+                except BaseException as exc:     # handed to the caller by put / finish
+                    self._error = exc
+
+    def _raise(self):
+        if self._error is not None:
+            raise self._error
+
+    def put(self, offset: int, part) -> None:
+        """Queue one chunk (blocks while `depth` chunks wait) [-]."""
+        self._raise()
+        self._queue.put((offset, part))
+
+    def finish(self) -> None:
+        """Write what is queued, stop the thread and raise a writer error if there was one [-]."""
+        self._queue.put(None)
+        self._thread.join()
+        self._raise()
+
+    def stop(self) -> None:
+        """Stop after the chunks already queued (on an error elsewhere) [-]."""
+        self._queue.put(None)
+        self._thread.join()
 
 
 def _open_store(path, total: int, grid_axes, axes):

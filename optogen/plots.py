@@ -378,6 +378,10 @@ def _map_panel(ax, ds, var, xdim, ydim, log: bool, cmap: str, mass_action: bool 
     return filled
 
 
+#: most grid values drawn along each axis of a map (a larger axis is drawn on every k-th value) [-]
+MAP_POINTS = 600
+
+
 def sweep_map(ds, var: str = "np_over_ni2", log: bool = True, *, x: str | None = None,
               second: str | None = "implied_voc_V", ax=None):
     """Filled map with labelled contours of `var` over two swept keys.
@@ -417,6 +421,9 @@ def sweep_map(ds, var: str = "np_over_ni2", log: bool = True, *, x: str | None =
     if xdim not in dims:
         raise InputError("plots.sweep_map.x", x, "one of " + ", ".join(dims))
     ydim = dims[1] if xdim == dims[0] else dims[0]
+    # a map cannot show more points than it has pixels: a large grid is drawn on every k-th value
+    # (the data are unchanged; a streamed grid is read only at those points)
+    ds = ds.isel({d: slice(None, None, -(-ds.sizes[d] // MAP_POINTS)) for d in dims})
     panels = [(var, log)]
     single = ax is not None and not isinstance(ax, (list, tuple, np.ndarray))
     if second and second != var and second in ds and not single:

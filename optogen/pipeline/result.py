@@ -512,6 +512,23 @@ def _hyperslabs(start: int, stop: int, shape: Sequence[int]):
             yield (i1, *idx), i1 * inner + lo, i1 * inner + hi
 
 
+#: width of the character arrays that hold strings in a streamed file, and their dimension [-]
+STRING_WIDTH = 32
+STRING_DIM = "string32"
+
+
+def _characters(values: np.ndarray) -> np.ndarray:
+    """Strings as an (n, STRING_WIDTH) array of single UTF-8 bytes (CF 2.2 character arrays).
+
+    Raises ValueError for a string longer than STRING_WIDTH bytes (the labels written here are
+    short model words: a longer one is a programming error, never truncated silently).
+    """
+    encoded = np.char.encode(np.asarray(values).astype(str), "utf-8")
+    if encoded.dtype.itemsize > STRING_WIDTH:
+        raise ValueError(f"a string longer than {STRING_WIDTH} bytes cannot be streamed: {encoded.max()!r}")
+    return np.asarray(encoded, dtype=f"S{STRING_WIDTH}").view("S1").reshape(-1, STRING_WIDTH)
+
+
 class ChunkStore:
     """A sweep written chunk by chunk to a chunked, zlib-compressed NetCDF4 file (h5netcdf).
 
@@ -552,14 +569,17 @@ class ChunkStore:
         self.units = {(b, k): u for b, vals in (names_units or {}).items() for k, u in vals.items()}
         self._names: dict[tuple[str, str], str] = {}
         self._file = h5netcdf.File(self.path, "w")
-        self._file.dimensions = dict(zip(self.dims, self.shape))
+        # on disk in the scenario's axis order (the Dataset's); the chunks arrive in grid order
+        self._perm = [self.dims.index(d) for d in self.order]
+        self._file.dimensions = {self.dims[i]: self.shape[i] for i in self._perm}
         for a, d in zip(self.axes, self.dims):
             values = np.asarray(a.values)
             v = self._file.create_variable(d, (d,), values.dtype if values.dtype.kind != "b" else np.int8)
             v[...] = values.astype(np.int8) if values.dtype.kind == "b" else values
             for k, val in coord_attrs(a.key, values).items():
                 v.attrs[k] = val
-        self._chunks = self._chunk_shape()
+        grid_chunks = self._chunk_shape()
+        self._chunks = tuple(grid_chunks[i] for i in self._perm)
 
     def _chunk_shape(self) -> tuple[int, ...]:
         """HDF5 chunks: whole fast dimensions (last first) up to about DISK_CHUNK_VALUES values."""
@@ -579,13 +599,21 @@ class ChunkStore:
         if name == "converged" or kind == "b":
             dtype, fill = np.int8, None         # no _FillValue: xarray would mask the 0 (false) flags
         elif kind in "OUS":
-            import h5py
-            dtype, fill = h5py.string_dtype(), None
+            # fixed-width characters (CF 2.2), not variable-length strings: xarray reads those
+            # whole when it opens the file, which a grid of 1e7 points cannot afford
+            if STRING_DIM not in self._file.dimensions:
+                self._file.dimensions[STRING_DIM] = STRING_WIDTH
+            v = self._file.create_variable(name, tuple(self.order) + (STRING_DIM,), "S1",
+                                           chunks=self._chunks + (STRING_WIDTH,), compression="gzip",
+                                           compression_opts=ZLIB_LEVEL)
+            v.attrs["_Encoding"] = "utf-8"
+            for k, val in var_attrs(name, sample, block, key).items():
+                v.attrs[k] = val
+            return v
         else:
             dtype, fill = sample.dtype if kind == "f" else np.float64, np.nan
-        opts = dict(chunks=self._chunks, compression="gzip", compression_opts=ZLIB_LEVEL, shuffle=True) \
-            if kind not in "OUS" else dict(chunks=self._chunks)
-        v = self._file.create_variable(name, tuple(self.dims), dtype, fillvalue=fill, **opts)
+        opts = dict(chunks=self._chunks, compression="gzip", compression_opts=ZLIB_LEVEL, shuffle=True)
+        v = self._file.create_variable(name, tuple(self.order), dtype, fillvalue=fill, **opts)
         attrs = var_attrs(name, sample.astype(bool) if dtype is np.int8 else sample, block, key)
         units = self.units.get((block, key))
         if units is not None and "units" in attrs:
@@ -620,15 +648,21 @@ class ChunkStore:
                 if offset < 0 or offset + arr.size > self.size:
                     raise ValueError(f"chunk [{offset}, {offset + arr.size}) outside the grid of {self.size} points")
                 v = self._variable(block, key, arr)
+                tail: list[int] = []
                 if v.dtype == np.int8:
                     arr = arr.astype(np.int8)
-                elif arr.dtype.kind in "OU":
-                    arr = arr.astype(str).astype(object)
-                for index, lo, hi in _hyperslabs(offset, offset + arr.size, self.shape):
-                    piece = tuple(s.stop - s.start if isinstance(s, slice) and s.stop is not None else
-                                  (n if isinstance(s, slice) else None)
-                                  for s, n in zip(index, self.shape))
-                    v[index] = arr[lo - offset: hi - offset].reshape([p for p in piece if p is not None])
+                elif arr.dtype.kind in "OUS":
+                    arr = _characters(arr)
+                    tail = [STRING_WIDTH]
+                for index, lo, hi in _hyperslabs(offset, offset + arr.shape[0], self.shape):
+                    # the hyperslab in grid order, every axis kept (an integer index as a length-1
+                    # slice), then put in the disk's axis order
+                    full = tuple(slice(s, s + 1) if not isinstance(s, slice) else
+                                 slice(s.start or 0, n if s.stop is None else s.stop)
+                                 for s, n in zip(index, self.shape))
+                    data = arr[lo - offset: hi - offset].reshape([s.stop - s.start for s in full] + tail)
+                    data = data.transpose(self._perm + list(range(len(full), data.ndim)))
+                    v[tuple(full[i] for i in self._perm) + (slice(None),) * len(tail)] = data
 
     def abandon(self) -> None:
         """Close and delete the file (a run that failed part-way leaves nothing behind)."""
@@ -654,5 +688,4 @@ class ChunkStore:
             self._file.attrs[k] = val
         self._file.attrs["optogen_storage"] = "chunked NetCDF4 written chunk by chunk (optogen ChunkStore)"
         self._file.close()
-        ds = xr.open_dataset(self.path, engine="h5netcdf")
-        return ds.transpose(*self.order)
+        return xr.open_dataset(self.path, engine="h5netcdf")      # already in the scenario's order

@@ -117,11 +117,17 @@ def test_dask_local_cluster_gives_identical_answers():
         np.testing.assert_array_equal(got[name].values, ref[name].values)
 
 
-def test_streamed_sweep_equals_the_in_memory_sweep(tmp_path):
+@pytest.mark.parametrize("axes", [
+    '"absorber.thickness_um" = [120, 180]\n"light.suns" = { log = [0.01, 10], points = 9 }\n'
+    '"absorber.temperature_K" = [280, 300, 320, 340, 360]',
+    # a slow key listed after the fast ones: the chunks arrive in (slow, fast) order, the file is
+    # written in the scenario's order
+    '"light.suns" = { log = [0.01, 10], points = 9 }\n"absorber.thickness_um" = [120, 180]\n'
+    '"absorber.temperature_K" = [280, 300, 320, 340, 360]'], ids=["slow_first", "slow_between"])
+def test_streamed_sweep_equals_the_in_memory_sweep(tmp_path, axes):
     # issue 11: a sweep streamed chunk by chunk to disk (ChunkStore) holds the same numbers as the
     # in-memory grid, bit for bit, with chunks that cut across rows of the grid (37 points, 3 axes)
-    sc = sweep(WAFER, '"absorber.thickness_um" = [120, 180]\n"light.suns" = { log = [0.01, 10], points = 9 }\n'
-                      '"absorber.temperature_K" = [280, 300, 320, 340, 360]')
+    sc = sweep(WAFER, axes)
     ref = optogen.run(sc, progress=False).to_dataset()
     got = optogen.run(sc, progress=False, chunk_size=37, store=tmp_path / "stream.nc").to_dataset()
     assert set(got.data_vars) == set(ref.data_vars)

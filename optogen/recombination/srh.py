@@ -115,15 +115,36 @@ class Defect:
     Either energy_eV + sigma_n_cm2 + sigma_p_cm2 + density_cm3 (tau_x0 = 1/(sigma_x v_th,x(T) N_t)),
     or tau_n0_s + tau_p0_s (+ energy_eV; mid-gap, at the intrinsic level, if absent).
 
-    name: label or built-in name [-]
-    energy_eV: level position measured from `energy_ref` [eV]
-    energy_ref: "Ev" (upward from the valence band edge), "Ec" (downward from the
-        conduction band edge) or "Ei" (signed, upward from the intrinsic level) [-]
-    sigma_n_cm2, sigma_p_cm2: capture cross-sections [cm^2]
-    density_cm3: defect density N_t [cm^-3]
-    tau_n0_s, tau_p0_s: capture time constants [s]
-    source: citation of the level parameters
-    label: dotted scenario path used in error messages [-]
+    Parameters
+    ----------
+    name : str, optional
+        Label or built-in name.
+    energy_eV : float or None, optional
+        Level position measured from `energy_ref` [eV].
+    energy_ref : {"Ev", "Ec", "Ei"}, optional
+        "Ev" (upward from the valence band edge), "Ec" (downward from the conduction band
+        edge) or "Ei" (signed, upward from the intrinsic level); case-insensitive.
+    sigma_n_cm2, sigma_p_cm2 : float or None, optional
+        Electron and hole capture cross-sections [cm^2].
+    density_cm3 : float or None, optional
+        Defect density N_t [cm^-3].
+    tau_n0_s, tau_p0_s : float or None, optional
+        Capture time constants [s].
+    source : str, optional
+        Citation of the level parameters.
+    label : str, optional
+        Dotted scenario path used in error messages.
+
+    Raises
+    ------
+    InputError
+        For a bad energy_ref, both lifetimes and cross-sections, a missing partner value, or a
+        value out of range.
+
+    References
+    ----------
+    W. Shockley and W. T. Read, Phys. Rev. 87, 835 (1952), doi:10.1103/PhysRev.87.835;
+    R. N. Hall, Phys. Rev. 87, 387 (1952), doi:10.1103/PhysRev.87.387.
     """
 
     name: str = "custom"
@@ -173,7 +194,28 @@ class Defect:
         return self.tau_n0_s is not None or self.density_cm3 is not None
 
     def tau_s(self, material, T_K):
-        """Capture time constants (tau_n0, tau_p0) [s] at T_K [K] (inf where no capture)."""
+        """Capture time constants (tau_n0, tau_p0) at T_K (inf where no capture).
+
+        tau_x0 = 1 / (sigma_x v_th,x(T) N_t) for a level given by cross-sections, else the
+        given time constants at every temperature.
+
+        Parameters
+        ----------
+        material : materials.Material
+            The absorber (its thermal velocities `vth_cm_s`).
+        T_K : float or array_like
+            Temperature [K].
+
+        Returns
+        -------
+        tau_n0, tau_p0 : numpy.ndarray
+            Electron and hole capture time constants [s].
+
+        Raises
+        ------
+        InputError
+            For a level given by cross-sections without a density.
+        """
         if self.tau_n0_s is not None:
             T = np.asarray(T_K, dtype=float)
             return np.full_like(T, self.tau_n0_s), np.full_like(T, self.tau_p0_s)
@@ -181,14 +223,27 @@ class Defect:
             raise InputError(f"{self.label or 'defect ' + self.name}.density_cm3", None,
                              "a defect density [cm^-3] for a level given by cross-sections")
         ve, vh = material.vth_cm_s(T_K)
-        with np.errstate(divide="ignore"):
+        # a vanishing density (down to a subnormal 1e-308 cm^-3) is an infinite lifetime, not an error
+        with np.errstate(divide="ignore", over="ignore"):
             return (1.0 / (self.sigma_n_cm2 * ve * np.asarray(self.density_cm3, float)),
                     1.0 / (self.sigma_p_cm2 * vh * np.asarray(self.density_cm3, float)))
 
     def level_from_ev_eV(self, effective_gap_eV, intrinsic_level_eV):
-        """Et - Ev [eV] given the gap and the intrinsic level (from Ev) [eV]; mid-gap (Eg/2) if no energy.
+        """Et - Ev given the gap and the intrinsic level; mid-gap (Eg/2) if no energy.
 
         Mid-gap, not E_i: in narrow-gap materials with unequal masses E_i can leave the gap.
+
+        Parameters
+        ----------
+        effective_gap_eV : array_like
+            Ec - Ev of the statistics [eV].
+        intrinsic_level_eV : array_like
+            Intrinsic level E_i - Ev [eV].
+
+        Returns
+        -------
+        numpy.ndarray
+            Et - Ev [eV].
         """
         if self.energy_eV is None:
             return 0.5 * np.asarray(effective_gap_eV, dtype=float) + 0.0 * np.asarray(intrinsic_level_eV)
@@ -224,6 +279,13 @@ def defect_from_table(table: Mapping, label: str = "recombination.defects.0") ->
     Returns
     -------
     Defect
+        The level, with `label` set.
+
+    Raises
+    ------
+    InputError
+        For an unknown key, a name that is no built-in without level parameters, or a
+        missing density.
 
     References
     ----------

@@ -312,3 +312,14 @@ def test_j0_temperature_scaling_can_be_switched_off():
     assert fixed.j0_at_fA_cm2(SI, 350.0, "front") == 10.0
     # n_i^2 rises about 1800x from 298 to 350 K (Misiakos & Tsamakis 1993 n_i(T), from memory)
     assert scaled.j0_at_fA_cm2(SI, 350.0, "front") > 10.0 * 100
+
+
+def test_vanishing_defect_density_is_an_infinite_lifetime():
+    # tau = 1 / (sigma v_th N) (Shockley & Read 1952): with N = 1e-308 cm^-3 the product is
+    # subnormal and tau exceeds the float range: +inf (no SRH), with no RuntimeWarning (pytest
+    # turns those into errors); found by the mutation test (density set to 1e-308)
+    from optogen.recombination import DEFECTS
+    import dataclasses
+    fe = dataclasses.replace(DEFECTS["FeB"], density_cm3=1e-308)
+    tau_n, tau_p = fe.tau_s(materials.get("Si"), 300.0)
+    assert np.isinf(tau_n) and np.isinf(tau_p)

@@ -15,12 +15,29 @@ from .scenario import Scenario, load_scenario
 def run(scenario, *, spectrum=None, **kwargs):
     """Run a scenario (a Scenario, a path or TOML text); see `optogen.pipeline.run`.
 
-    spectrum: a measured spectrum to use as the [light] source instead of the scenario's:
+    Parameters
+    ----------
+    scenario : Scenario or str or pathlib.Path
+        The scenario, a path to a scenario file, or TOML text.
+    spectrum : tuple of array_like, pandas.Series, pandas.DataFrame or light.Spectrum, optional
+        A measured spectrum to use as the [light] source instead of the scenario's:
         (wavelength_nm, irradiance_W_m2_nm) arrays [nm], [W m^-2 nm^-1], a pandas Series
         (index: wavelength) or DataFrame (columns named as in a spectrum file), or a
         `optogen.light.Spectrum`.  It runs as ``light.source = "file"``: the scenario's
         scaling key (suns, irradiance_W_m2, ...) rescales it, without one its absolute values
         are used.  The Dataset attribute ``spectrum_note`` says so.
+    **kwargs
+        Passed to `optogen.pipeline.run` (progress, workers, scheduler, chunk_size, store).
+
+    Returns
+    -------
+    optogen.pipeline.Result
+        The labelled Dataset, a single point's details and the run's warnings.
+
+    Raises
+    ------
+    InputError
+        For a scenario or spectrum that fails its checks.
     """
     from .pipeline import run as _run     # the pipeline imports the whole core: only when a run is asked for
     if not isinstance(scenario, Scenario):

@@ -15,7 +15,24 @@ BUNDLED = ("spectra", "scenarios")
 
 
 def data_dir(name: str):
-    """The folder of bundled data `name` ("spectra" or "scenarios") as a Traversable / Path."""
+    """The folder of bundled data `name` ("spectra" or "scenarios").
+
+    Parameters
+    ----------
+    name : {"spectra", "scenarios"}
+        Which bundled folder.
+
+    Returns
+    -------
+    importlib.resources.abc.Traversable or pathlib.Path
+        The package resource folder, or the checkout's own folder when imported from a
+        source tree without its package-dir mapping.
+
+    Raises
+    ------
+    KeyError
+        For a name not in `BUNDLED`.
+    """
     if name not in BUNDLED:
         raise KeyError(name)
     try:

@@ -74,7 +74,18 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def add_analyse_parser(subparsers) -> argparse.ArgumentParser:
-    """Add `optogen analyse SCENARIO [--json] [--out DIR] [--set K=V] [--folder DIR]` to the CLI parsers."""
+    """Add `optogen analyse SCENARIO [--json] [--out DIR] [--set K=V] [--folder DIR]` to the CLI parsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The sub-command parsers of the `optogen` command.
+
+    Returns
+    -------
+    argparse.ArgumentParser
+        The parser of the ``analyse`` sub-command.
+    """
     a = subparsers.add_parser("analyse", help="analyse measured lifetime or photoconductance data "
                                               "(a scenario with a [measurement] section)")
     a.add_argument("scenario", help="scenario file (TOML) with [absorber] and [measurement]")
@@ -112,6 +123,24 @@ def _debug_wanted(argv) -> bool:
 
 
 def main(argv=None) -> int:
+    """The `optogen` command: parse the arguments, run the sub-command, map errors to exit codes.
+
+    Bad input (`InputError`) prints one line "optogen: error: ..." (status 2); any other
+    exception is an internal error, one line asking for a report (status 1), with the
+    traceback only under ``--debug`` or OPTOGEN_DEBUG=1.
+
+    Parameters
+    ----------
+    argv : sequence of str or None, optional
+        The arguments after the program name (None: ``sys.argv[1:]``).
+
+    Returns
+    -------
+    int
+        The exit status: 0 on success (also for --help, --version and a closed output
+        pipe), EXIT_INPUT (2) for bad input or usage, EXIT_INTERNAL (1) for a bug, 130 when
+        interrupted.
+    """
     debug = _debug_wanted(argv)
     try:
         args = _parser().parse_args(argv)

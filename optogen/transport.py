@@ -335,12 +335,21 @@ def pick_mobility_model(material, model: str | None = None) -> registry.Model:
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber.
     model : str, optional
-        Model name or alias (default: `material.mobility_model`) [-].
+        Model name or alias (default: `material.mobility_model`).
 
     Returns
     -------
     optogen.registry.Model
+        The registered model (its ``call(material, T, nd, na, n, p)`` gives (mu_e, mu_h)
+        [cm^2 V^-1 s^-1]).
+
+    Raises
+    ------
+    InputError
+        For an unknown model, or one that does not apply to the material
+        (field ``absorber.mobility_model``).
     """
     name = model or material.mobility_model
     return registry.check_material(registry.pick("mobility", name, "absorber.mobility_model"), material,
@@ -353,6 +362,7 @@ def missing_mobility_record(material) -> str | None:
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber.
 
     Returns
     -------
@@ -380,6 +390,7 @@ def carriers_full_ionisation(material, T_K, donors_cm3, acceptors_cm3):
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber (Nc, Nv, Eg of T).
     T_K : array_like
         Temperature [K].
     donors_cm3, acceptors_cm3 : array_like
@@ -404,6 +415,7 @@ def mobility_cm2_Vs(material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3=
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber (its mobility records and default model).
     T_K : array_like
         Temperature [K].
     donors_cm3, acceptors_cm3 : array_like
@@ -411,7 +423,7 @@ def mobility_cm2_Vs(material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3=
     n_cm3, p_cm3 : array_like, optional
         Carrier densities [cm^-3] (default: the full-ionisation equilibrium, `carriers_full_ionisation`).
     model : str, optional
-        A registered "mobility" model (default `material.mobility_model`) [-].
+        A registered "mobility" model (default `material.mobility_model`).
 
     Returns
     -------
@@ -452,7 +464,7 @@ def conductivity_S_cm(n_cm3, p_cm3, mu_e_cm2_Vs, mu_h_cm2_Vs):
     Returns
     -------
     ndarray
-        sigma [S/cm].
+        sigma [S cm^-1].
 
     References
     ----------
@@ -485,14 +497,15 @@ def doping_to_resistivity(material, density_cm3, dopant_type, T_K=300.0, model=N
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber.
     density_cm3 : array_like
         Donor (dopant_type "n") or acceptor ("p") density [cm^-3].
-    dopant_type : str
-        "n" or "p" [-].
+    dopant_type : {"n", "p"}
+        The dopant type.
     T_K : array_like
         Temperature [K].
     model : str, optional
-        A registered "mobility" model (default `material.mobility_model`) [-].
+        A registered "mobility" model (default `material.mobility_model`).
 
     Returns
     -------
@@ -528,14 +541,15 @@ def resistivity_to_doping(material, resistivity_ohm_cm, dopant_type, T_K=300.0, 
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber.
     resistivity_ohm_cm : array_like
         Target resistivity, > 0 [ohm cm].
-    dopant_type : str
-        "n" or "p" [-].
+    dopant_type : {"n", "p"}
+        The dopant type.
     T_K : array_like
         Temperature [K].
     model : str, optional
-        A registered "mobility" model [-].
+        A registered "mobility" model (default `material.mobility_model`).
     max_density_cm3 : float
         Upper end of the bracket [cm^-3].
 
@@ -543,6 +557,11 @@ def resistivity_to_doping(material, resistivity_ohm_cm, dopant_type, T_K=300.0, 
     -------
     ndarray or float
         The donor ("n") or acceptor ("p") density [cm^-3].
+
+    Raises
+    ------
+    InputError
+        For a target outside [rho(N_hi), rho(N_lo)], or a bad dopant type or resistivity.
 
     References
     ----------
@@ -590,18 +609,32 @@ def match_resistivity_cm3(material, resistivity_ohm_cm, dopant_type, T_K=300.0, 
 
     Parameters
     ----------
-    material : `optogen.materials.Material`
-    resistivity_ohm_cm : target resistivity rho > 0 [ohm cm]
-    dopant_type : "n" (donors) or "p" (acceptors)
-    T_K : temperature of the resistivity [K]
-    model : mobility model name (default `material.mobility_model`)
-    equilibrium_options : keyword arguments of `optogen.equilibrium.equilibrium`
-        (donor, acceptor, ni_model, bgn_model, incomplete_ionisation)
-    iterations : most rescaling steps [-]
+    material : optogen.materials.Material
+        The absorber.
+    resistivity_ohm_cm : array_like
+        Target resistivity rho > 0 [ohm cm].
+    dopant_type : {"n", "p"}
+        "n" (donors) or "p" (acceptors).
+    T_K : array_like
+        Temperature of the resistivity [K].
+    model : str, optional
+        Mobility model name (default `material.mobility_model`).
+    equilibrium_options : dict, optional
+        Keyword arguments of `optogen.equilibrium.equilibrium`
+        (donor, acceptor, ni_model, bgn_model, incomplete_ionisation).
+    iterations : int, optional
+        Most rescaling steps [-].
 
     Returns
     -------
-    The donor ("n") or acceptor ("p") density [cm^-3], shaped like `resistivity_ohm_cm`.
+    ndarray or float
+        The donor ("n") or acceptor ("p") density [cm^-3], shaped like `resistivity_ohm_cm`.
+
+    References
+    ----------
+    ASTM F723; W. R. Thurber et al., NBS Special Publication 400-64 (1981) (the
+    full-ionisation start); P. P. Altermatt et al., J. Appl. Phys. 100, 113714 (2006),
+    doi:10.1063/1.2386934 (incomplete ionisation, through `optogen.equilibrium.equilibrium`).
     """
     rho = _arr(check_range("absorber.resistivity_ohm_cm", resistivity_ohm_cm, 0.0, low_open=True,
                            unit="ohm cm"))
@@ -636,7 +669,7 @@ def diffusivity_cm2_s(mobility_cm2_Vs, T_K):
     Returns
     -------
     ndarray
-        D [cm^2/s].
+        D [cm^2 s^-1].
 
     References
     ----------
@@ -656,12 +689,12 @@ def ambipolar_diffusivity_cm2_s(n_cm3, p_cm3, D_e_cm2_s, D_h_cm2_s):
     n_cm3, p_cm3 : array_like
         Electron and hole densities [cm^-3].
     D_e_cm2_s, D_h_cm2_s : array_like
-        Electron and hole diffusivities [cm^2/s].
+        Electron and hole diffusivities [cm^2 s^-1].
 
     Returns
     -------
     ndarray
-        D_amb [cm^2/s].
+        D_amb [cm^2 s^-1].
 
     References
     ----------
@@ -678,7 +711,7 @@ def diffusion_length_cm(D_cm2_s, tau_s):
     Parameters
     ----------
     D_cm2_s : array_like
-        Diffusivity [cm^2/s].
+        Diffusivity [cm^2 s^-1].
     tau_s : array_like
         Lifetime [s].
 
@@ -711,15 +744,21 @@ def photoconductance_S(n0_cm3, p0_cm3, n_cm3, p_cm3, mu_e_dark_cm2_Vs, mu_h_dark
 
     Parameters
     ----------
-    n0_cm3, p0_cm3 : dark electron and hole densities [cm^-3]
-    n_cm3, p_cm3 : electron and hole densities under light [cm^-3]
-    mu_e_dark_cm2_Vs, mu_h_dark_cm2_Vs : mobilities at (n0, p0) [cm^2 V^-1 s^-1]
-    mu_e_light_cm2_Vs, mu_h_light_cm2_Vs : mobilities at (n, p) [cm^2 V^-1 s^-1]
-    thickness_cm : wafer thickness W [cm]
+    n0_cm3, p0_cm3 : array_like
+        Dark electron and hole densities [cm^-3].
+    n_cm3, p_cm3 : array_like
+        Electron and hole densities under light [cm^-3].
+    mu_e_dark_cm2_Vs, mu_h_dark_cm2_Vs : array_like
+        Mobilities at (n0, p0) [cm^2 V^-1 s^-1].
+    mu_e_light_cm2_Vs, mu_h_light_cm2_Vs : array_like
+        Mobilities at (n, p) [cm^2 V^-1 s^-1].
+    thickness_cm : array_like
+        Wafer thickness W [cm].
 
     Returns
     -------
-    Sheet photoconductance [S] (siemens per square), broadcast over the inputs.
+    ndarray
+        Sheet photoconductance [S] (siemens per square), broadcast over the inputs.
 
     References
     ----------

@@ -207,12 +207,20 @@ def pick_bgn_model(material: Material, model: str | None = None) -> registry.Mod
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber.
     model : str, optional
-        Model name or alias (default: the material's ``bgn_model``, else "none") [-].
+        Model name or alias (default: the material's ``bgn_model``, else "none").
 
     Returns
     -------
     optogen.registry.Model
+        The registered model (its ``call(material, T, nd, na, n, p)`` gives dEg [eV]).
+
+    Raises
+    ------
+    InputError
+        For an unknown model, or one that does not apply to the material
+        (field ``recombination.bandgap_narrowing``).
     """
     name = model or getattr(material, "bgn_model", None) or "none"
     field = "recombination.bandgap_narrowing"
@@ -226,7 +234,7 @@ def bgn_eV(material: Material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3
     Parameters
     ----------
     material : optogen.materials.Material
-        The absorber [-].
+        The absorber.
     T_K : array_like
         Temperature [K].
     donors_cm3, acceptors_cm3 : array_like
@@ -236,7 +244,7 @@ def bgn_eV(material: Material, T_K, donors_cm3, acceptors_cm3, n_cm3=None, p_cm3
         through, for complex-step derivatives); when omitted, the full-ionisation neutral
         values (`full_ionisation_cm3`) with the material's default n_i model.
     model : str, optional
-        A registered "bgn" model (default: the material's ``bgn_model``, else "none") [-].
+        A registered "bgn" model (default: the material's ``bgn_model``, else "none").
 
     Returns
     -------

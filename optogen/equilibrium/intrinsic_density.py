@@ -90,6 +90,11 @@ def ni_hansen_schmit1983(x, T_K, log: bool = False):
     ndarray
         n_i [cm^-3] (or ln n_i [ln cm^-3]).
 
+    Raises
+    ------
+    InputError
+        Where Eg(x, T) <= 0 (x below about 0.17: a semimetal).
+
     References
     ----------
     G. L. Hansen and J. L. Schmit, J. Appl. Phys. 54, 1639 (1983), doi:10.1063/1.332153.
@@ -137,12 +142,20 @@ def pick_ni_model(material: Material, model: str | None = None) -> registry.Mode
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber.
     model : str, optional
-        Model name or alias (default: the material's ``ni_model``, else "nc_nv_eg") [-].
+        Model name or alias (default: the material's ``ni_model``, else "nc_nv_eg").
 
     Returns
     -------
     optogen.registry.Model
+        The registered model (its ``call(material, T)`` gives ln n_i [ln cm^-3]).
+
+    Raises
+    ------
+    InputError
+        For an unknown model, or one that does not apply to the material
+        (field ``absorber.ni_model``).
     """
     name = model or getattr(material, "ni_model", None) or "nc_nv_eg"
     return registry.check_material(registry.pick("ni", name, "absorber.ni_model"), material,

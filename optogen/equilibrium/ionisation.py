@@ -49,7 +49,8 @@ def ionisation_altermatt2006(material: Material, dopant: Dopant, density_cm3):
     P. P. Altermatt, A. Schenk and G. Heiser, J. Appl. Phys. 100, 113714 (2006),
     doi:10.1063/1.2386934; P. P. Altermatt, A. Schenk, B. Schmithuesen and G. Heiser,
     J. Appl. Phys. 100, 113715 (2006), doi:10.1063/1.2386935 (DOIs from memory).
-    P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978) (Mott criterion).
+    P. P. Edwards and M. J. Sienko, Phys. Rev. B 17, 2575 (1978), doi:10.1103/PhysRevB.17.2575
+    (Mott criterion; DOI from memory).
     """
     N = np.asarray(density_cm3, dtype=float)
     par = _ALTERMATT2006.get((material.name, dopant.name))
@@ -110,14 +111,23 @@ def dopant_species(material: Material, name, kind: str) -> Dopant | None:
     Parameters
     ----------
     material : optogen.materials.Material
+        The host.
     name : str, Dopant or None
-        Species name (None: the material's first listed species of that kind, or None) [-].
-    kind : str
-        "donor" or "acceptor" [-].
+        Species name, or a Dopant (returned as is); None: the material's first listed
+        species of that kind, or None.
+    kind : {"donor", "acceptor"}
+        The kind of species.
 
     Returns
     -------
     optogen.materials.Dopant or None
+        The species; None when the material lists none of that kind and none is named.
+
+    Raises
+    ------
+    InputError
+        For a species the material does not list, or one of the other kind
+        (field ``absorber.<kind>_species``).
     """
     if isinstance(name, Dopant):
         return name

@@ -35,12 +35,49 @@ class Equilibrium:
     """Dark equilibrium of an absorber; all array fields broadcast together.
 
     Energies are measured from the valence band edge Ev [eV]; Ec = Ev + effective_gap_eV.
-    bandgap_eV is Eg(T) without narrowing; bgn_eV the narrowing; effective_gap_eV the gap of
-    the statistics, Nc Nv exp(-Eg_eff/kT) = ni_eff^2.  ``ln_*_cm3`` fields are natural logs
-    of densities [ln cm^-3] (finite where the linear value underflows to 0.0, e.g. n_i of
-    Si at 4 K).  material, ni_model, bgn_model, donor, acceptor: the names used;
-    statistics: "fermi_dirac" or "boltzmann", the carrier statistics of the narrowing model
-    (`STATISTICS`).
+    ``ln_*_cm3`` fields are natural logs of densities [ln cm^-3] (finite where the linear
+    value underflows to 0.0, e.g. n_i of Si at 4 K).
+
+    Parameters
+    ----------
+    temperature_K : ndarray
+        Temperature [K].
+    donors_cm3, acceptors_cm3 : ndarray
+        Donor and acceptor densities N_D, N_A [cm^-3].
+    n0_cm3, p0_cm3 : ndarray
+        Dark electron and hole densities [cm^-3].
+    ni_cm3 : ndarray
+        Intrinsic density n_i of the n_i model [cm^-3].
+    ni_eff_cm3 : ndarray
+        Effective intrinsic density n_i,eff = n_i exp(bgn / 2kT) [cm^-3].
+    bgn_eV : ndarray
+        Band-gap narrowing dEg [eV].
+    bandgap_eV : ndarray
+        Eg(T) without narrowing [eV].
+    effective_gap_eV : ndarray
+        The gap of the statistics, Nc Nv exp(-Eg_eff/kT) = ni_eff^2 [eV].
+    nc_cm3, nv_cm3 : ndarray
+        Effective densities of states of the conduction and valence bands [cm^-3].
+    fermi_level_eV : ndarray
+        E_F - Ev [eV].
+    intrinsic_level_eV : ndarray
+        E_i - Ev = Eg_eff/2 + (kT/2) ln(Nv/Nc) [eV].
+    ionised_donors_cm3, ionised_acceptors_cm3 : ndarray
+        N_D^+ and N_A^- [cm^-3].
+    ln_n0_cm3, ln_p0_cm3 : ndarray
+        ln n0 and ln p0 [ln cm^-3].
+    ln_ni_cm3, ln_ni_eff_cm3 : ndarray
+        ln n_i and ln n_i,eff [ln cm^-3].
+    material : str
+        Name of the material used.
+    ni_model : str
+        Name of the n_i model used.
+    bgn_model : str
+        Name of the band-gap narrowing model used.
+    donor, acceptor : str or None
+        Names of the dopant species used (None: none of that kind).
+    statistics : {"fermi_dirac", "boltzmann"}
+        The carrier statistics of the narrowing model (`STATISTICS`).
     """
 
     temperature_K: np.ndarray
@@ -74,7 +111,14 @@ class Equilibrium:
                   "ionised_donors_cm3", "ionised_acceptors_cm3")
 
     def to_dict(self) -> dict:
-        """The DESIGN.md ``equilibrium`` block: python floats when scalar, nested lists otherwise."""
+        """The DESIGN.md ``equilibrium`` block: python floats when scalar, nested lists otherwise.
+
+        Returns
+        -------
+        dict
+            n0_cm3, p0_cm3, ni_cm3, ni_eff_cm3, ionised_donors_cm3, ionised_acceptors_cm3
+            [cm^-3], fermi_level_eV, bandgap_eV [eV].
+        """
         out = {}
         for k in self._DICT_KEYS:
             v = np.asarray(getattr(self, k))
@@ -91,7 +135,7 @@ def _log_occupancy(eta, boltzmann: bool = False):
 
 
 def _neutrality(E, kT, eg, lnc, lnv, lnd, lna, ed, ea, lgd, lga, lbd, lbd1, lba, lba1, boltzmann=False):
-    """f = ln(p0 + N_D^+) - ln(n0 + N_A^-) and df/dE_F [1/eV] at Fermi level E [eV]; plus the logs.
+    """f = ln(p0 + N_D^+) - ln(n0 + N_A^-) and df/dE_F [eV^-1] at Fermi level E [eV]; plus the logs.
 
     boltzmann: carriers with Boltzmann instead of Fermi-Dirac statistics (see `STATISTICS`).
     """
@@ -180,7 +224,7 @@ def equilibrium(material: Material, T_K, donors_cm3=0.0, acceptors_cm3=0.0, *,
     Parameters
     ----------
     material : optogen.materials.Material
-        The absorber [-].
+        The absorber.
     T_K : array_like
         Temperature [K].
     donors_cm3, acceptors_cm3 : array_like
@@ -199,10 +243,17 @@ def equilibrium(material: Material, T_K, donors_cm3=0.0, acceptors_cm3=0.0, *,
     Equilibrium
         Densities [cm^-3] and energies [eV] above Ev, shaped like the broadcast inputs.
 
+    Raises
+    ------
+    InputError
+        For a temperature or density out of range, an unknown model or species, or a
+        temperature at which the material's band gap has closed.
+
     References
     ----------
     The chosen n_i and narrowing models' (`optogen.registry`); P. P. Altermatt et al.,
-    J. Appl. Phys. 100, 113714 and 113715 (2006) for the ionisation.
+    J. Appl. Phys. 100, 113714 and 113715 (2006), doi:10.1063/1.2386934 and
+    doi:10.1063/1.2386935, for the ionisation.
     """
     T = _check_T(T_K)
     nd = np.asarray(check_range("absorber.donors_cm3", donors_cm3, 0.0, None, unit="cm^-3"))

@@ -466,7 +466,7 @@ def _detector_block(setup, eq, ss, T, nd, na, out, trial=False, dark_states=None
 
 
 def _rear_S_cm_s(d, rec, material, T, eq):
-    """Rear recombination velocity for the thin-base J0 [cm/s]: [detector] rear_S_cm_s, else the
+    """Rear recombination velocity for the thin-base J0 [cm s^-1]: [detector] rear_S_cm_s, else the
     [recombination] rear surface (S, or J0 as its low-injection S_eff,
     `recombination.surface_velocity_j0_cm_s`), else 0 (a perfect rear)."""
     if d.rear_S_cm_s is not None:

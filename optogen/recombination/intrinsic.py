@@ -28,10 +28,16 @@ __all__ = ["IntrinsicCoefficients", "radiative_b_trupke2003", "radiative_band_to
 class IntrinsicCoefficients(NamedTuple):
     """Coefficients of U_auger = (n p - n_i,eff^2)(A + C dn^e) and U_rad = B (n p - n_i,eff^2).
 
-    A_cm3_s: the dark-density part of the Auger factor [cm^3/s]
-    C: coefficient of dn^e [cm^(3 + 3e) s^-1]
-    exponent: e [-]
-    B_cm3_s: radiative coefficient [cm^3/s]
+    Parameters
+    ----------
+    A_cm3_s : ndarray
+        The dark-density part of the Auger factor [cm^3 s^-1].
+    C : ndarray
+        Coefficient of dn^e [cm^(3 + 3e) s^-1].
+    exponent : float
+        e [-].
+    B_cm3_s : ndarray
+        Radiative coefficient [cm^3 s^-1].
     """
 
     A_cm3_s: np.ndarray
@@ -56,7 +62,7 @@ _TRUPKE2003_TABLE = np.array([
 def radiative_b_trupke2003(T_K):
     """Radiative coefficient B(T) of lightly doped crystalline Si.
 
-    Log-log interpolation in the published table (B(300 K) = 4.73e-15 cm^3/s; other entries
+    Log-log interpolation in the published table (B(300 K) = 4.73e-15 cm^3 s^-1; other entries
     from memory).  Above 300 K the last segment's power law (B ~ T^-0.79) is continued;
     below 77 K B is held at its 77 K value.
 
@@ -68,7 +74,7 @@ def radiative_b_trupke2003(T_K):
     Returns
     -------
     ndarray
-        B [cm^3/s].
+        B [cm^3 s^-1].
 
     References
     ----------
@@ -95,7 +101,7 @@ def radiative_band_to_band(n0_cm3, p0_cm3, delta_n_cm3, B_cm3_s, B_rel=1.0, phot
     delta_n_cm3 : array_like
         Excess density [cm^-3].
     B_cm3_s : array_like
-        Radiative coefficient [cm^3/s].
+        Radiative coefficient [cm^3 s^-1].
     B_rel : array_like
         Relative coefficient (screening at high densities; 1 = none) [-].
     photon_recycling : array_like
@@ -132,8 +138,12 @@ def auger_from_coefficients(excess_cm6, delta_n_cm3, A_cm3_s, C, exponent):
         n p - n_i,eff^2 (`excess_product_cm6`) [cm^-6].
     delta_n_cm3 : array_like
         Excess density [cm^-3].
-    A_cm3_s, C, exponent : array_like
-        See `IntrinsicCoefficients` [cm^3/s], [cm^(3 + 3e) s^-1], [-].
+    A_cm3_s : array_like
+        Dark-density part of the Auger factor, see `IntrinsicCoefficients` [cm^3 s^-1].
+    C : array_like
+        Coefficient of dn^e [cm^(3 + 3e) s^-1].
+    exponent : array_like
+        e [-].
 
     Returns
     -------
@@ -153,7 +163,7 @@ def intrinsic_coefficients_richter2012(n0_cm3, p0_cm3, T_K):
 
     U = (n p - n_i,eff^2) (2.5e-31 g_eeh n0 + 8.5e-32 g_ehh p0 + 3.0e-29 dn^0.92 + B_rel B_low)
     g_eeh = 1 + 13 (1 - tanh((n0/3.3e17)^0.66)),  g_ehh = 1 + 7.5 (1 - tanh((p0/7.0e17)^0.63))
-    (constants from memory).  B_low = 4.73e-15 cm^3/s at 300 K (Trupke 2003); here
+    (constants from memory).  B_low = 4.73e-15 cm^3 s^-1 at 300 K (Trupke 2003); here
     B_low(T) = `radiative_b_trupke2003`.  The fit is for 300 K.
 
     Parameters
@@ -166,7 +176,7 @@ def intrinsic_coefficients_richter2012(n0_cm3, p0_cm3, T_K):
     Returns
     -------
     IntrinsicCoefficients
-        A [cm^3/s], C = 3.0e-29 [cm^5.76 s^-1], e = 0.92, B [cm^3/s].
+        A [cm^3 s^-1], C = 3.0e-29 [cm^5.76 s^-1], e = 0.92, B [cm^3 s^-1].
 
     References
     ----------
@@ -198,7 +208,7 @@ def intrinsic_coefficients_kerr_cuevas2002(n0_cm3, p0_cm3, T_K=300.0):
     Returns
     -------
     IntrinsicCoefficients
-        A [cm^3/s], C = 3e-27 [cm^5.4 s^-1], e = 0.8, B = 9.5e-15 [cm^3/s].
+        A [cm^3 s^-1], C = 3e-27 [cm^5.4 s^-1], e = 0.8, B = 9.5e-15 [cm^3 s^-1].
 
     References
     ----------
@@ -212,7 +222,7 @@ def intrinsic_coefficients_kerr_cuevas2002(n0_cm3, p0_cm3, T_K=300.0):
 def intrinsic_coefficients_dziewior_schmid1977(n0_cm3, p0_cm3, T_K):
     """Band-to-band Auger of Si with constant coefficients, Dziewior & Schmid 1977.
 
-    U_auger = (Cn n + Cp p)(n p - n_i,eff^2), Cn = 2.8e-31, Cp = 9.9e-32 cm^6/s; the radiative
+    U_auger = (Cn n + Cp p)(n p - n_i,eff^2), Cn = 2.8e-31, Cp = 9.9e-32 cm^6 s^-1; the radiative
     coefficient is `radiative_b_trupke2003`.
 
     Parameters
@@ -225,7 +235,7 @@ def intrinsic_coefficients_dziewior_schmid1977(n0_cm3, p0_cm3, T_K):
     Returns
     -------
     IntrinsicCoefficients
-        A = Cn n0 + Cp p0 [cm^3/s], C = Cn + Cp [cm^6/s], e = 1, B [cm^3/s].
+        A = Cn n0 + Cp p0 [cm^3 s^-1], C = Cn + Cp [cm^6 s^-1], e = 1, B [cm^3 s^-1].
 
     References
     ----------
@@ -246,6 +256,7 @@ def intrinsic_coefficients_material(material, n0_cm3, p0_cm3, T_K):
     Parameters
     ----------
     material : optogen.materials.Material
+        The absorber record (Cn, Cp and B, temperature-dependent where its models are).
     n0_cm3, p0_cm3 : array_like
         Dark electron and hole densities [cm^-3].
     T_K : array_like
@@ -254,7 +265,7 @@ def intrinsic_coefficients_material(material, n0_cm3, p0_cm3, T_K):
     Returns
     -------
     IntrinsicCoefficients
-        A = Cn n0 + Cp p0 [cm^3/s], C = Cn + Cp [cm^6/s], e = 1, B [cm^3/s].
+        A = Cn n0 + Cp p0 [cm^3 s^-1], C = Cn + Cp [cm^6 s^-1], e = 1, B [cm^3 s^-1].
 
     References
     ----------

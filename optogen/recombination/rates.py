@@ -53,21 +53,50 @@ INJECTION_BGN_MODELS = tuple(a for m in registry.models("bgn", load=False) if m.
 class Recombination:
     """The recombination mechanisms of an absorber (parameters only; rates come from `rates`).
 
-    intrinsic: Auger + radiative model, a registered "intrinsic" model (aliases accepted);
-        None: "richter2012" for Si, "constant" (material Cn, Cp, B) otherwise [-]
-    bgn_model: band-gap narrowing model name for the equilibrium and, if injection-dependent
-        (Schenk 1998), for n_i,eff(n, p) inside the rates; None: the equilibrium's [-]
-    defects: SRH levels [-]
-    front_J0_fA_cm2 / front_S_cm_s, rear_J0_fA_cm2 / rear_S_cm_s: one per surface,
-        or neither (no surface recombination) [fA/cm^2] / [cm/s]
-    J0_reference_K: temperature at which the J0 values are quoted; at another temperature
+    Parameters
+    ----------
+    intrinsic : str or None, optional
+        Auger + radiative model, a registered "intrinsic" model (aliases accepted);
+        None: "richter2012" for Si, "constant" (material Cn, Cp, B) otherwise.
+    bgn_model : str or None, optional
+        Band-gap narrowing model name for the equilibrium and, if injection-dependent
+        (Schenk 1998), for n_i,eff(n, p) inside the rates; None: the equilibrium's.
+    defects : tuple of Defect, optional
+        SRH levels.
+    front_J0_fA_cm2 : float or None, optional
+        Front-surface saturation current density [fA cm^-2]; at most one of it and
+        front_S_cm_s (neither: no front-surface recombination).
+    front_S_cm_s : float or None, optional
+        Front-surface recombination velocity [cm s^-1].
+    rear_J0_fA_cm2 : float or None, optional
+        Rear-surface saturation current density [fA cm^-2]; at most one of it and
+        rear_S_cm_s (neither: no rear-surface recombination).
+    rear_S_cm_s : float or None, optional
+        Rear-surface recombination velocity [cm s^-1].
+    photon_recycling : float, optional
+        Fraction f_PR of radiative events re-absorbed, in [0, 1) [-].
+    B_rel : float, optional
+        Relative radiative coefficient applied to B (1: none, documented default;
+        an injection/doping-dependent B_rel is not modelled) [-].
+    injection_bgn : bool or None, optional
+        Recompute n_i,eff(n, p) inside the rates; None: when bgn_model is Schenk 1998.
+    J0_reference_K : float or None, optional
+        Temperature at which the J0 values are quoted [K]; at another temperature
         J0 scales as n_i^2(T) / n_i^2(J0_reference_K), n_i^2 = Nc Nv exp(-Eg/kT) of the material
         (a surface J0 is proportional to n_i^2; common practice).  None (false in a scenario):
-        J0 as given at every T [K]
-    photon_recycling: fraction f_PR of radiative events re-absorbed, in [0, 1) [-]
-    B_rel: relative radiative coefficient applied to B (1: none, documented default;
-        an injection/doping-dependent B_rel is not modelled) [-]
-    injection_bgn: recompute n_i,eff(n, p) inside the rates; None: when bgn_model is Schenk 1998 [-]
+        J0 as given at every T.
+
+    Raises
+    ------
+    InputError
+        For an unknown intrinsic model, both J0 and S on one surface, or a value out of range.
+
+    References
+    ----------
+    A. Richter, S. W. Glunz, F. Werner, J. Schmidt and A. Cuevas, Phys. Rev. B 86, 165202 (2012),
+    doi:10.1103/PhysRevB.86.165202 (the default intrinsic model of Si);
+    A. Schenk, J. Appl. Phys. 84, 3684 (1998), doi:10.1063/1.368545 (injection-dependent narrowing);
+    D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (the J0 law, from memory).
     """
 
     intrinsic: str | None = None
@@ -107,7 +136,25 @@ class Recombination:
 
     @classmethod
     def from_table(cls, table: Mapping | None) -> "Recombination":
-        """Build from a scenario's ``[recombination]`` table (unknown keys are errors)."""
+        """Build from a scenario's ``[recombination]`` table (unknown keys are errors).
+
+        Parameters
+        ----------
+        table : Mapping or None
+            The ``[recombination]`` table (``bandgap_narrowing`` names `bgn_model`;
+            ``defects`` a table or a list of tables, see `srh.defect_from_table`); None or
+            empty for the defaults.
+
+        Returns
+        -------
+        Recombination
+            The recombination settings.
+
+        Raises
+        ------
+        InputError
+            For an unknown key or a bad value, naming its dotted ``recombination.*`` field.
+        """
         table = dict(table or {})
         for k in table:
             registry.choose(f"recombination.{k}", k, _TABLE_KEYS, exact=True, allowed="one of " + ", ".join(_TABLE_KEYS))
@@ -121,18 +168,57 @@ class Recombination:
                    **kw)
 
     def intrinsic_model(self, material) -> str:
-        """Canonical name of the intrinsic model used for `material` [-]."""
+        """Canonical name of the intrinsic model used for `material`.
+
+        Parameters
+        ----------
+        material : materials.Material
+            The absorber.
+
+        Returns
+        -------
+        str
+            The registered name ("richter2012" wherever it applies when none is set, else
+            "constant").
+
+        Raises
+        ------
+        InputError
+            When the chosen model does not apply to the material.
+        """
         if self.intrinsic is None:     # Richter 2012 wherever it applies (silicon), else the record's constants
             return "richter2012" if registry.applies(registry.get("intrinsic", "richter2012"), material) else "constant"
         m = registry.pick("intrinsic", self.intrinsic, "recombination.intrinsic")
         return registry.check_material(m, material, "recombination.intrinsic", self.intrinsic).name
 
     def bgn_model_for(self, eq) -> str | None:
-        """The band-gap narrowing model name used inside the rates (None: none) [-]."""
+        """The band-gap narrowing model name used inside the rates.
+
+        Parameters
+        ----------
+        eq : Equilibrium
+            The equilibrium (its ``bgn_model`` when this object sets none).
+
+        Returns
+        -------
+        str or None
+            The model name; None for no narrowing.
+        """
         return self.bgn_model if self.bgn_model is not None else getattr(eq, "bgn_model", None)
 
     def uses_injection_bgn(self, eq) -> bool:
-        """True when n_i,eff is recomputed from n and p inside the rates."""
+        """True when n_i,eff is recomputed from n and p inside the rates.
+
+        Parameters
+        ----------
+        eq : Equilibrium
+            The equilibrium (for its narrowing model).
+
+        Returns
+        -------
+        bool
+            `injection_bgn` when set, else whether the narrowing model is injection-dependent.
+        """
         if self.injection_bgn is not None:
             return bool(self.injection_bgn)
         m = self.bgn_model_for(eq)
@@ -141,17 +227,46 @@ class Recombination:
     def prepare(self, material, eq, thickness_cm, shape=None, index=None) -> "PreparedRates":
         """Per-point constants of every mechanism, flattened.
 
-        material: the absorber; eq: an `Equilibrium` (fields broadcast together);
-        thickness_cm: W [cm]; shape: the operating-point shape to broadcast to (default:
-        the equilibrium's broadcast with thickness); index: flat indices into `shape` to
-        gather (default: all) [-].
+        Parameters
+        ----------
+        material : materials.Material
+            The absorber.
+        eq : Equilibrium
+            The dark state (fields broadcast together).
+        thickness_cm : float or array_like
+            Absorber thickness W [cm].
+        shape : tuple of int or None, optional
+            The operating-point shape to broadcast to (default: the equilibrium's broadcast
+            with thickness).
+        index : array_like of int or None, optional
+            Flat indices into `shape` to gather (default: all) [-].
+
+        Returns
+        -------
+        PreparedRates
+            Flat per-point constants for the solver's hot path.
         """
         return PreparedRates(self, material, eq, thickness_cm, shape, index)
 
     def j0_at_fA_cm2(self, material, T_K, side: str):
-        """J0 of the "front" or "rear" surface at temperature T_K [fA/cm^2] (None if given as S).
+        """J0 of the "front" or "rear" surface at temperature T_K (None if given as S).
 
         Scaled by n_i^2(T) / n_i^2(J0_reference_K) (`j0_at_temperature_fA_cm2`), as in the rates.
+
+        Parameters
+        ----------
+        material : materials.Material
+            The absorber (its n_i^2 sets the temperature scaling).
+        T_K : float or array_like
+            Temperature [K].
+        side : {"front", "rear"}
+            The surface.
+
+        Returns
+        -------
+        float or numpy.ndarray or None
+            J0 at T_K [fA cm^-2]; as given when J0_reference_K is None; None when the surface
+            is given as S (or not at all).
         """
         j0 = getattr(self, f"{side}_J0_fA_cm2")
         if j0 is None or self.J0_reference_K is None:
@@ -159,10 +274,24 @@ class Recombination:
         return j0_at_temperature_fA_cm2(j0, material, T_K, self.J0_reference_K)
 
     def rates(self, material, eq, delta_n_cm3, thickness_cm) -> dict:
-        """Rates of every mechanism at excess density delta_n_cm3 [cm^-3 s^-1].
+        """Rates of every mechanism at excess density delta_n_cm3.
 
-        Returns dict(srh=, radiative=, auger=, surface=) of arrays broadcast over eq,
-        delta_n_cm3 and thickness_cm.
+        Parameters
+        ----------
+        material : materials.Material
+            The absorber.
+        eq : Equilibrium
+            The dark state.
+        delta_n_cm3 : float or array_like
+            Excess carrier density Delta n = Delta p >= 0 [cm^-3].
+        thickness_cm : float or array_like
+            Absorber thickness W [cm].
+
+        Returns
+        -------
+        dict[str, numpy.ndarray]
+            Net rates U of srh, radiative, auger and surface (the surface loss per volume)
+            [cm^-3 s^-1], broadcast over eq, delta_n_cm3 and thickness_cm.
         """
         dn = np.asarray(delta_n_cm3, dtype=float)
         check_range("delta_n_cm3", dn, 0.0, None, unit="cm^-3")
@@ -198,6 +327,28 @@ class PreparedRates:
 
     Built by `Recombination.prepare`; `rates(dn)` is the hot path of the solver and
     touches only these arrays.  `take(idx)` gives the subset at positions idx.
+
+    Parameters
+    ----------
+    rec : Recombination or None
+        The recombination settings; None makes an empty object (used by `take`).
+    material : materials.Material
+        The absorber.
+    eq : Equilibrium
+        The dark state (fields broadcast together).
+    thickness_cm : float or array_like
+        Absorber thickness W [cm].
+    shape : tuple of int or None, optional
+        The operating-point shape to broadcast to (default: the equilibrium's broadcast
+        with thickness).
+    index : array_like of int or None, optional
+        Flat indices into `shape` to gather (default: all) [-].
+
+    Raises
+    ------
+    InputError
+        For a defect level outside the gap, a J0 surface where n_i,eff^2 underflows, or no
+        mechanism at all.
     """
 
     _ARRAYS = ("T", "kT", "ef", "nd", "na", "n0", "p0", "log_n0", "log_p0", "nc", "nv", "eg", "bgn0",
@@ -292,7 +443,18 @@ class PreparedRates:
         return self.T.shape[0]
 
     def take(self, idx) -> "PreparedRates":
-        """The subset of points at positions idx [-]."""
+        """The subset of points at positions idx.
+
+        Parameters
+        ----------
+        idx : array_like of int or bool
+            Positions (or a mask) among the P points [-].
+
+        Returns
+        -------
+        PreparedRates
+            A new object sharing the settings, with every per-point array indexed.
+        """
         new = PreparedRates(None, None, None, None)
         new.__dict__.update(self.__dict__)
         for k in self._ARRAYS:
@@ -300,10 +462,7 @@ class PreparedRates:
         return new
 
     def ni2_shift(self, dn, precise: bool = True):
-        """ln(n_i,eff^2(n, p) / (n0 p0)) at excess density dn [-] (0 without injection BGN).
-
-        precise=False: always the plain difference (enough where U need not be resolved to
-        1e-10, e.g. the implied J-V curve).
+        """ln(n_i,eff^2(n, p) / (n0 p0)) at excess density dn (0 without injection BGN).
 
         (dEg(n0 + dn, p0 + dn) - dEg(n0, p0)) / kT.  The plain difference of two nearly equal
         narrowings carries an absolute error of a few ulp of dEg; in U that error is weighted
@@ -311,6 +470,25 @@ class PreparedRates:
         the minority density (near-intrinsic material at high temperature: up to ~5e-10 of U,
         enough to miss the 1e-10 residual).  There, dn < 1e-2 min(n0, p0), the difference is
         `_shift_integral` instead (no subtraction).
+
+        Parameters
+        ----------
+        dn : array_like
+            Excess density Delta n, length P [cm^-3].
+        precise : bool, optional
+            False: always the plain difference (enough where U need not be resolved to
+            1e-10, e.g. the implied J-V curve).
+
+        Returns
+        -------
+        numpy.ndarray or float
+            The shift (dEg(n0 + dn, p0 + dn) - dEg(n0, p0)) / kT [-]; 0.0 without
+            injection-dependent narrowing.
+
+        References
+        ----------
+        W. Squire and G. Trapp, SIAM Rev. 40, 110 (1998), doi:10.1137/S003614459631241X
+        (the complex-step derivative of `_shift_integral`).
         """
         if not self.inj_bgn:
             return 0.0
@@ -345,7 +523,26 @@ class PreparedRates:
         return total
 
     def rates(self, dn, shift=None):
-        """(srh, radiative, auger, surface) rates at excess density dn (length P) [cm^-3 s^-1]."""
+        """(srh, radiative, auger, surface) rates at excess density dn.
+
+        Parameters
+        ----------
+        dn : array_like
+            Excess density Delta n, length P [cm^-3].
+        shift : array_like or float or None, optional
+            ln(n_i,eff^2(n, p) / (n0 p0)) at dn [-]; None computes it (`ni2_shift`).
+
+        Returns
+        -------
+        srh, radiative, auger, surface : numpy.ndarray
+            Net rates, length P [cm^-3 s^-1] (the surface loss per volume of the absorber).
+
+        References
+        ----------
+        W. Shockley and W. T. Read, Phys. Rev. 87, 835 (1952), doi:10.1103/PhysRev.87.835;
+        R. N. Hall, Phys. Rev. 87, 387 (1952), doi:10.1103/PhysRev.87.387 (SRH);
+        D. E. Kane and R. M. Swanson, Proc. 18th IEEE PVSC, p. 578 (1985) (the J0 law, from memory).
+        """
         dn = np.asarray(dn, dtype=float)
         if shift is None:
             shift = self.ni2_shift(dn)
@@ -376,7 +573,10 @@ class PreparedRates:
 
         Returns
         -------
-        dU/dDelta n at fixed shift [s^-1], dU/dshift at fixed Delta n [cm^-3 s^-1], arrays (P,).
+        u_d : ndarray (P,)
+            dU/dDelta n at fixed shift [s^-1].
+        u_s : ndarray (P,) or float
+            dU/dshift at fixed Delta n [cm^-3 s^-1].
 
         References
         ----------
@@ -421,6 +621,17 @@ class PreparedRates:
         return u_d, u_s
 
     def total(self, dn):
-        """Total rate at excess density dn [cm^-3 s^-1]."""
+        """Total rate at excess density dn.
+
+        Parameters
+        ----------
+        dn : array_like
+            Excess density Delta n, length P [cm^-3].
+
+        Returns
+        -------
+        numpy.ndarray
+            U = U_srh + U_radiative + U_auger + U_surface [cm^-3 s^-1].
+        """
         s, r, a, f = self.rates(dn)
         return s + r + a + f

@@ -32,7 +32,7 @@ def j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K=298.15):
     Parameters
     ----------
     J0_fA_cm2 : array_like
-        J0 at J0_reference_K [fA/cm^2].
+        J0 at J0_reference_K [fA cm^-2].
     material : optogen.materials.Material
         The absorber (Nc, Nv, Eg of T).
     T_K : array_like
@@ -43,7 +43,12 @@ def j0_at_temperature_fA_cm2(J0_fA_cm2, material, T_K, J0_reference_K=298.15):
     Returns
     -------
     ndarray
-        J0 at T_K [fA/cm^2], broadcast over J0_fA_cm2 and T_K.
+        J0 at T_K [fA cm^-2], broadcast over J0_fA_cm2 and T_K.
+
+    Raises
+    ------
+    InputError
+        When J0_reference_K is set but material or T_K is missing.
 
     References
     ----------
@@ -79,7 +84,7 @@ def surface_j0_flux_cm2_s(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, ni2_shift=0.0,
     delta_n_cm3 : array_like
         Excess density at the surface [cm^-3].
     J0_fA_cm2 : array_like
-        Saturation current density of the surface, quoted at J0_reference_K [fA/cm^2].
+        Saturation current density of the surface, quoted at J0_reference_K [fA cm^-2].
     ni2_shift : array_like
         ln(n_i,eff^2(n, p) / (n0 p0)) from injection-dependent narrowing, 0 otherwise [-].
     material : optogen.materials.Material, optional
@@ -90,12 +95,12 @@ def surface_j0_flux_cm2_s(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, ni2_shift=0.0,
         Temperature at which J0 is quoted [K] (default 298.15, as
         `Recombination.J0_reference_K`); None: J0_fA_cm2 is already the value at T.
     derivative : bool
-        Also return dUs/ddn [cm/s] (at fixed ni2_shift).
+        Also return dUs/ddn [cm s^-1] (at fixed ni2_shift).
 
     Returns
     -------
     ndarray or (ndarray, ndarray)
-        Us [cm^-2 s^-1] (0 where J0 = 0), or (Us, dUs/ddn [cm/s]) with derivative=True.
+        Us [cm^-2 s^-1] (0 where J0 = 0), or (Us, dUs/ddn [cm s^-1]) with derivative=True.
 
     References
     ----------
@@ -133,11 +138,24 @@ def surface_j0(n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, thickness_cm, ni2_shift=0
 
     Parameters
     ----------
-    n0_cm3, p0_cm3, delta_n_cm3, J0_fA_cm2, ni2_shift, material, T_K, J0_reference_K :
-        As `surface_j0_flux_cm2_s` ([cm^-3], [fA/cm^2], [-], [K]); J0_fA_cm2 is the sum over
-        the surfaces described by a J0.
+    n0_cm3, p0_cm3 : array_like
+        Dark electron and hole densities [cm^-3].
+    delta_n_cm3 : array_like
+        Excess density [cm^-3].
+    J0_fA_cm2 : array_like
+        Saturation current density, the sum over the surfaces described by a J0, quoted at
+        J0_reference_K [fA cm^-2].
     thickness_cm : array_like
         Wafer thickness W [cm].
+    ni2_shift : array_like
+        ln(n_i,eff^2(n, p) / (n0 p0)) from injection-dependent narrowing, 0 otherwise [-].
+    material : optogen.materials.Material, optional
+        The absorber; needed unless J0_reference_K is None.
+    T_K : array_like, optional
+        Temperature [K]; needed unless J0_reference_K is None.
+    J0_reference_K : float or None
+        Temperature at which J0 is quoted [K] (as `surface_j0_flux_cm2_s`); None: J0_fA_cm2
+        is already the value at T.
 
     Returns
     -------
@@ -165,13 +183,13 @@ def surface_velocity_j0_cm_s(n0_cm3, p0_cm3, J0_fA_cm2):
     n0_cm3, p0_cm3 : array_like
         Dark electron and hole densities [cm^-3].
     J0_fA_cm2 : array_like
-        Saturation current density of the surface at the absorber's temperature [fA/cm^2]
+        Saturation current density of the surface at the absorber's temperature [fA cm^-2]
         (carry a quoted value to T with `j0_at_temperature_fA_cm2` first).
 
     Returns
     -------
     ndarray
-        S_eff [cm/s], broadcast over the inputs.
+        S_eff [cm s^-1], broadcast over the inputs.
 
     References
     ----------

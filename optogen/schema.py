@@ -328,7 +328,7 @@ _KEYS: list[Key] = [
     _k("light.source", STRING, "", "AM1.5G", consumer="light.source_from_table",
        doc="AM1.5G, AM1.5D, AM0, blackbody, laser, led or file (optogen spectra)"),
     _k("light.suns", _NUM, "suns", None, 0.0, SUNS_MAX, sweep=FAST, consumer="light.scale",
-       doc="irradiance in suns (1 sun = 1000 W m-2 of the spectrum's shape)"),
+       doc="irradiance in suns (1 sun = 1000 W m^-2 of the spectrum's shape)"),
     _k("light.irradiance_W_m2", _NUM, "W m^-2", None, 0.0, IRRADIANCE_MAX_W_m2, sweep=FAST, consumer="light.scale",
        doc="total incident irradiance"),
     _k("light.power_W", _NUM, "W", None, 0.0, 1e6, sweep=FAST, consumer="light.scale",
@@ -755,8 +755,8 @@ def _rule_doping(data):
     total = float(ab.get("donors_cm3", 0.0)) + float(ab.get("acceptors_cm3", 0.0))
     if total > DOPING_MAX_cm3:
         raise InputError("absorber.donors_cm3", ab.get("donors_cm3"),
-                         f"donors_cm3 + acceptors_cm3 <= {DOPING_MAX_cm3:g} cm-3 (the enforced doping domain)",
-                         f"the sum is {total:.4g} cm-3")
+                         f"donors_cm3 + acceptors_cm3 <= {DOPING_MAX_cm3:g} cm^-3 (the enforced doping domain)",
+                         f"the sum is {total:.4g} cm^-3")
 
 
 def _rule_background(data):

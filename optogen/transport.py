@@ -47,8 +47,8 @@ def _arr(x):
 #: the phosphorus set, holes the boron set; the lattice and doping constants are
 #: the silicon record's (`optogen.materials.silicon.MOBILITY_E_SI` / `MOBILITY_H_SI`).
 KLAASSEN1992 = dict(
-    mu_max=(_E.mu_max_cm2_Vs, _H.mu_max_cm2_Vs),   # lattice mobility at 300 K [cm^2/Vs] (e, h)
-    mu_min=(_E.mu_min_cm2_Vs, _H.mu_min_cm2_Vs),   # [cm^2/Vs]
+    mu_max=(_E.mu_max_cm2_Vs, _H.mu_max_cm2_Vs),   # lattice mobility at 300 K [cm^2 V^-1 s^-1] (e, h)
+    mu_min=(_E.mu_min_cm2_Vs, _H.mu_min_cm2_Vs),   # [cm^2 V^-1 s^-1]
     theta=(_E.theta, _H.theta),                    # lattice temperature exponent [-]
     n_ref=(_E.n_ref_cm3, _H.n_ref_cm3),            # [cm^-3]
     alpha=(_E.alpha, _H.alpha),                    # [-]

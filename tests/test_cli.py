@@ -240,8 +240,8 @@ def test_wrong_set_values_are_input_errors(capsys, setting):
 
 
 def test_check_applies_the_light_ceiling_to_the_brightest_swept_value(capsys, tmp_path):
-    # 1e22 photons cm-2 s-1 of AM1.5G: about 2.3e7 W m-2 (AM1.5G mean photon energy ~1.45 eV, ASTM G173,
-    # from memory), above the 1e7 W m-2 ceiling; 1e20 is well below it
+    # 1e22 photons cm^-2 s^-1 of AM1.5G: about 2.3e7 W m^-2 (AM1.5G mean photon energy ~1.45 eV, ASTM G173,
+    # from memory), above the 1e7 W m^-2 ceiling; 1e20 is well below it
     path = tmp_path / "flux.toml"
     path.write_text((SCEN / "rooftop_n_wafer.toml").read_text().replace("suns = 1.0", "photon_flux_cm2_s = 1e17")
                     + '\n[sweep]\n"light.photon_flux_cm2_s" = [1e17, 1e22]\n')

@@ -198,7 +198,7 @@ def test_light_ceiling_applies_to_a_blackbody_through_its_irradiance():
     sigma = sc_const.Stefan_Boltzmann
     assert sigma * 4000.0**4 > schema.IRRADIANCE_MAX_W_m2 > sigma * 3000.0**4
     text = WAFER.replace('source = "AM1.5G"\nsuns = 1.0', 'source = "blackbody"\ntemperature_K = 4000')
-    with pytest.raises(InputError, match="W m-2"):
+    with pytest.raises(InputError, match=r"W m\^-2"):
         optogen.run(load_scenario(text))
 
 

@@ -34,7 +34,7 @@ CROSSOVER_EXCLUSION = 0.2
 
 
 def srh_per_unit_density(smp: Sample, delta_n_cm3, name: str, shift=0.0):
-    """f_X(dn) = U_SRH(N_t = 1 cm^-3)/dn of a built-in defect [cm^3/s].
+    """f_X(dn) = U_SRH(N_t = 1 cm^-3)/dn of a built-in defect [cm^3 s^-1].
 
     name: a key of `optogen.recombination.DEFECTS` ("Fe_i", "FeB"); shift: the narrowing shift
     ln(n_i,eff^2(n, p)/(n0 p0)) at each dn [-].

@@ -51,7 +51,7 @@ class KaneSwanson:
     J0_fA_cm2, J0_std_fA_cm2: J0 of both surfaces together and its 1-sigma uncertainty [fA cm^-2];
     inv_tau_bulk_s, inv_tau_bulk_std_s: the intercept, 1/tau_SRH in the window [1/s];
     slope_cm3_s: d(1/tau_corr)/d(dn) of the textbook form, J0/(q n_i^2 W) with n_i^2 = n0 p0
-    (the dark product) [cm^3/s]; window_cm3: (low, high) [cm^-3]; points: points used [-];
+    (the dark product) [cm^3 s^-1]; window_cm3: (low, high) [cm^-3]; points: points used [-];
     covariance: of (intercept [1/s], J0 [fA cm^-2]).
     """
 
@@ -125,7 +125,7 @@ def j0_kane_swanson1985(delta_n_cm3, inv_tau_corrected_s, n0_cm3, p0_cm3, thickn
     Returns
     -------
     KaneSwanson: J0 of both surfaces together [fA cm^-2] with its uncertainty, the intercept
-    1/tau_SRH [1/s], the textbook slope [cm^3/s].
+    1/tau_SRH [1/s], the textbook slope [cm^3 s^-1].
 
     References
     ----------

@@ -100,7 +100,7 @@ class Material:
     dopants: tuple[Dopant, ...] = ()
     vth_e_300K_cm_s: float = 2.0e7      #: electron thermal velocity at 300 K [cm/s]
     vth_h_300K_cm_s: float = 1.7e7      #: hole thermal velocity at 300 K [cm/s]
-    radiative_B_cm3_s: float = 0.0      #: band-to-band radiative coefficient at 300 K [cm^3/s]
+    radiative_B_cm3_s: float = 0.0      #: band-to-band radiative coefficient at 300 K [cm^3 s^-1]
     auger_Cn_cm6_s: float = 0.0         #: electron (eeh) Auger coefficient at 300 K [cm^6/s]
     auger_Cp_cm6_s: float = 0.0         #: hole (ehh) Auger coefficient at 300 K [cm^6/s]
     mobility_model: str = "caughey_thomas"
@@ -164,7 +164,7 @@ class Material:
 
     # -- recombination coefficients ---------------------------------------
     def radiative_coefficient_cm3_s(self, T_K):
-        """Band-to-band radiative coefficient B(T) [cm^3/s] at T_K [K] per `radiative_model`."""
+        """Band-to-band radiative coefficient B(T) [cm^3 s^-1] at T_K [K] per `radiative_model`."""
         T = np.asarray(T_K, dtype=float)
         return _model("radiative", self.radiative_model).call(self, T)
 

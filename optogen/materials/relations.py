@@ -172,7 +172,7 @@ def radiative_hall1959(T_K, Eg_eV, me_m0, mh_m0, permittivity):
     Returns
     -------
     ndarray
-        B [cm^3/s].
+        B [cm^3 s^-1].
 
     References
     ----------
@@ -256,14 +256,14 @@ def radiative_from_record(material, T_K):
     Parameters
     ----------
     material : Material
-        Its radiative_B_cm3_s [cm^3/s].
+        Its radiative_B_cm3_s [cm^3 s^-1].
     T_K : array_like
         Temperature [K] (shapes the result only).
 
     Returns
     -------
     ndarray
-        B [cm^3/s].
+        B [cm^3 s^-1].
     """
     return material.radiative_B_cm3_s + 0.0 * np.asarray(T_K, dtype=float)
 

@@ -183,7 +183,7 @@ def evaluate(setup: Setup, values: Mapping[str, np.ndarray], n: int,
         notes = []
         if np.any(~np.asarray(ss.converged)):
             notes.append(f"{int(np.sum(~np.asarray(ss.converged)))} operating point(s) did not converge (no root of "
-                         f"G = U with 1e-304 < delta n < {DN_MAX_CM3:.0e} cm-3, the range the models support)")
+                         f"G = U with 1e-304 < delta n < {DN_MAX_CM3:.0e} cm^-3, the range the models support)")
         if setup.spectrum is not None:
             frac = absorbed_fraction_below_eV(g.wavelength_nm, g.absorbed_photon_flux_cm2_s_nm, inv,
                                               np.ravel(ss.splitting_eV))
@@ -332,7 +332,7 @@ def _depth_resolved(setup: Setup, eq, ss, T, nd, na, scale):
         # with the injection-dependent narrowing shift at the face density
         j0 = getattr(rec, f"{side}_J0_fA_cm2")
         if j0 is not None:
-            check_range(f"recombination.{side}_J0_fA_cm2", j0, 0.0, None, unit="fA/cm^2")
+            check_range(f"recombination.{side}_J0_fA_cm2", j0, 0.0, None, unit="fA cm^-2")
             prep = rec.prepare(mat, col, W, shape=(T.size, 1))
             c0, v0 = n0[:, None], p0[:, None]
             return lambda dn: surface_j0_flux_cm2_s(

@@ -249,9 +249,9 @@ def check_irradiance(sc: Scenario, irradiance_W_m2) -> None:
     if np.any(bad):
         key = _scaling_key(sc)
         raise InputError(key, sc.get(key),
-                         f"a light level of at most {schema.IRRADIANCE_MAX_W_m2:g} W m-2 incident "
+                         f"a light level of at most {schema.IRRADIANCE_MAX_W_m2:g} W m^-2 incident "
                          f"({schema.SUNS_MAX:g} suns, the enforced domain)",
-                         f"this source gives {float(np.max(np.where(bad, irr, -np.inf))):.4g} W m-2")
+                         f"this source gives {float(np.max(np.where(bad, irr, -np.inf))):.4g} W m^-2")
 
 
 def check_doping_sum(nd, na, field: str) -> None:
@@ -275,7 +275,7 @@ def check_doping_sum(nd, na, field: str) -> None:
     bad = ~(total <= schema.DOPING_MAX_cm3)
     if np.any(bad):
         raise InputError(field, float(np.max(np.where(bad, total, -np.inf))),
-                         f"a total dopant density N_D + N_A <= {schema.DOPING_MAX_cm3:g} cm-3 "
+                         f"a total dopant density N_D + N_A <= {schema.DOPING_MAX_cm3:g} cm^-3 "
                          "(the enforced doping domain)")
 
 

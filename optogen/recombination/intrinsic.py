@@ -50,7 +50,7 @@ class IntrinsicCoefficients(NamedTuple):
 # Radiative
 # ---------------------------------------------------------------------------
 
-# (T [K], B [cm^3/s]) for intrinsic Si, T. Trupke et al., J. Appl. Phys. 94, 4930 (2003),
+# (T [K], B [cm^3 s^-1]) for intrinsic Si, T. Trupke et al., J. Appl. Phys. 94, 4930 (2003),
 # doi:10.1063/1.1610231, Table I as recalled (from memory; the 300 K value 4.73e-15 is the
 # paper's headline figure, the others are less certain, about +-20 %).
 _TRUPKE2003_TABLE = np.array([

@@ -121,9 +121,9 @@ class Recombination:
                 raise InputError(f"recombination.{side}_S_cm_s", s,
                                  f"only one of {side}_J0_fA_cm2 and {side}_S_cm_s per surface")
             if j0 is not None:
-                check_range(f"recombination.{side}_J0_fA_cm2", j0, 0.0, None, unit="fA/cm^2")
+                check_range(f"recombination.{side}_J0_fA_cm2", j0, 0.0, None, unit="fA cm^-2")
             if s is not None:
-                check_range(f"recombination.{side}_S_cm_s", s, 0.0, None, unit="cm/s")
+                check_range(f"recombination.{side}_S_cm_s", s, 0.0, None, unit="cm s^-1")
         check_range("recombination.photon_recycling", self.photon_recycling, 0.0, 1.0, high_open=True)
         check_range("recombination.B_rel", self.B_rel, 0.0, None)
         if self.J0_reference_K is False:        # a scenario's `J0_reference_K = false`: J0 fixed at every T

@@ -41,8 +41,8 @@ def lifetime_figure(res) -> Figure:
     top = np.nanmax(c["tau_measured_s"]) * 1e6
     ax.set_ylim(top / 1e3, top * 30)
     ax.axvline(res.implied["delta_n_1sun_cm3"], color="0.6", lw=0.8)
-    ax.set_xlabel("excess carrier density Δn [cm⁻³]")
-    ax.set_ylabel("lifetime τ [µs]")
+    ax.set_xlabel("excess carrier density Δn (cm^-3)")
+    ax.set_ylabel("lifetime τ (us)")
     ax.set_title(f"{res.title[:70]}\nlifetime and mechanisms (grey line: 1 sun)", fontsize=9)
     ax.legend(fontsize=8)
     return fig
@@ -62,9 +62,9 @@ def inverse_figure(res) -> Figure:
         sel = (dn >= lo) & (dn <= hi)
         m = res.mech
         line = ks.inv_tau_bulk_s + ks.J0_fA_cm2 * m.x_j0[sel]
-        ax.plot(dn[sel], line, "-", color="tab:orange", label=f"J0 = {ks.J0_fA_cm2:.3g} fA/cm²")
-    ax.set_xlabel("excess carrier density Δn [cm⁻³]")
-    ax.set_ylabel("corrected inverse lifetime [s⁻¹]")
+        ax.plot(dn[sel], line, "-", color="tab:orange", label=f"J0 = {ks.J0_fA_cm2:.3g} fA cm^-2")
+    ax.set_xlabel("excess carrier density Δn (cm^-3)")
+    ax.set_ylabel("corrected inverse lifetime (s^-1)")
     ax.set_title("Corrected inverse lifetime (Kane & Swanson 1985)")
     ax.legend(fontsize=8)
     return fig
@@ -77,7 +77,7 @@ def jv_figure(res) -> Figure:
     ax = fig.add_subplot()
     ax.plot(im["jv_voltage_V"], im["jv_current_mA_cm2"], color="k")
     ax.set_xlabel("implied voltage [V]")
-    ax.set_ylabel("current density [mA cm⁻²]")
+    ax.set_ylabel("current density (mA cm^-2)")
     ax.set_title(f"Implied J–V at 1 sun: iVoc {im['voc_1sun_V'] * 1e3:.1f} mV, iFF {im['ff_1sun'] * 100:.2f} %")
     ax.set_ylim(bottom=0)
     ax.set_xlim(left=0)

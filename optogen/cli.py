@@ -103,14 +103,8 @@ def add_analyse_parser(subparsers) -> argparse.ArgumentParser:
 
 
 def _overrides(items):
-    from .scenario import parse_value
-    out = {}
-    for item in items:
-        if "=" not in item:
-            raise InputError("--set", item, "KEY=VALUE, e.g. light.suns=0.1")
-        k, v = item.split("=", 1)
-        out[k.strip()] = parse_value(v.strip())
-    return out
+    from .scenario import parse_overrides
+    return parse_overrides(items)
 
 
 def _one_line(text) -> str:

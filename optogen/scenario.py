@@ -502,6 +502,35 @@ def _set_dotted(data: dict, key: str, value) -> None:
     node[parts[-1]] = value
 
 
+def parse_overrides(items, example: str = "light.suns=0.1") -> dict:
+    """``--set KEY=VALUE`` items as a dict of dotted keys to TOML values.
+
+    Parameters
+    ----------
+    items : iterable of str
+        The ``KEY=VALUE`` strings [-].
+    example : str
+        An example shown in the error [-].
+
+    Returns
+    -------
+    dict
+        Dotted key -> value (parsed by `parse_value`).
+
+    Raises
+    ------
+    InputError
+        For an item without "=".
+    """
+    out = {}
+    for item in items:
+        if "=" not in item:
+            raise InputError("--set", item, f"KEY=VALUE, e.g. {example}")
+        k, v = item.split("=", 1)
+        out[k.strip()] = parse_value(v.strip())
+    return out
+
+
 def parse_value(text: str):
     """A --set value: TOML syntax if it parses (numbers, booleans, lists), else a string.
 

@@ -21,7 +21,7 @@ from optogen import schema
 from optogen.constants import q_C
 from optogen.errors import InputError
 from optogen.recombination import j0_at_temperature_fA_cm2
-from optogen.scenario import UNIT_SUFFIXES, Scenario, load_scenario, parse_value
+from optogen.scenario import UNIT_SUFFIXES, Scenario, load_scenario, parse_overrides
 
 from . import keys as _keys
 from .data import LifetimeData, folder_files, read_lifetime_csv, read_record_csv
@@ -726,13 +726,7 @@ def analyse_folder(source, folder, overrides: Mapping[str, Any] | None = None, *
 # ---------------------------------------------------------------------------
 
 def _overrides(items):
-    out = {}
-    for item in items:
-        if "=" not in item:
-            raise InputError("--set", item, "KEY=VALUE, e.g. measurement.optical_factor=0.9")
-        k, v = item.split("=", 1)
-        out[k.strip()] = parse_value(v.strip())
-    return out
+    return parse_overrides(items, "measurement.optical_factor=0.9")
 
 
 def main(args) -> int:

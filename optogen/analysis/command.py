@@ -698,8 +698,8 @@ def analyse_folder(source, folder, overrides: Mapping[str, Any] | None = None, *
         over["measurement.file"] = str(Path(f).resolve())
         overs.append(over)
     if workers is not None or scheduler is not None:
-        from optogen.pipeline.sweep import _dask_client      # dask only when asked for
-        client = _dask_client(workers, scheduler)
+        from optogen.pipeline.sweep import dask_client      # dask only when asked for
+        client = dask_client(workers, scheduler)
         try:
             futures = [client.submit(analyse, source, o, base_dir=base_dir, pure=False) for o in overs]
             results = client.gather(futures)

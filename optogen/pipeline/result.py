@@ -62,40 +62,6 @@ def var_name(block: str, key: str) -> str:
     return key
 
 
-def flat_block(d: Mapping[str, Any], n: int) -> dict[str, np.ndarray]:
-    """Flatten a to_dict() block to arrays of length n ("tau_s.srh" for nested keys).
-
-    Parameters
-    ----------
-    d : Mapping[str, Any]
-        A block, nested one level at most; numbers, None (-> NaN), strings or arrays.
-    n : int
-        Number of points [-].
-
-    Returns
-    -------
-    dict[str, numpy.ndarray]
-        1-D arrays of length n: float for numbers, object for strings.
-    """
-    flat: dict[str, Any] = {}
-    for k, v in d.items():
-        if isinstance(v, Mapping):
-            for k2, v2 in v.items():
-                flat[f"{k}.{k2}"] = v2
-        else:
-            flat[k] = v
-    res = {}
-    for k, v in flat.items():
-        if isinstance(v, str) or np.asarray(v).dtype.kind == "U" or any(
-                isinstance(x, str) for x in np.ravel(np.asarray(v, dtype=object))):
-            res[k] = np.broadcast_to(np.asarray(v, dtype=object), (n,)).copy()
-            continue
-        a = np.asarray(v, dtype=object)
-        a = np.where(a == None, np.nan, a).astype(float)  # noqa: E711 (elementwise None test)
-        res[k] = np.broadcast_to(a, (n,)).copy() if a.ndim == 0 or a.size == 1 else a.reshape(-1)
-    return res
-
-
 @dataclass(frozen=True)
 class Result:
     """The outcome of a scenario: a labelled Dataset plus single-point details.

@@ -106,7 +106,7 @@ def run(scenario: Scenario, *, progress: bool | None = None, workers: int | None
     n_fast = int(np.prod([a.values.size for a in fast])) if fast else 1
     slow_combos = list(itertools.product(*[range(a.values.size) for a in slow]))
 
-    client = _dask_client(workers, scheduler) if (workers or scheduler) else None
+    client = dask_client(workers, scheduler) if (workers or scheduler) else None
     total = len(slow_combos) * n_fast
     merged: dict[str, dict[str, np.ndarray]] = {}     # filled in place: no second copy of the grid
     chunk_store = _open_store(store, total, slow + fast, axes)
@@ -281,7 +281,26 @@ def _progress(progress, total):
     return tqdm(total=total, disable=disable, delay=1.0, unit="chunk", desc="optogen sweep")
 
 
-def _dask_client(workers, scheduler):
+def dask_client(workers, scheduler):
+    """A dask.distributed client: a local cluster of `workers` processes, or an existing scheduler.
+
+    Parameters
+    ----------
+    workers : int or None
+        Single-threaded worker processes of a new local cluster, 1 to MAX_WORKERS [-].
+    scheduler : str or None
+        Address of an existing dask.distributed scheduler (used instead of `workers`) [-].
+
+    Returns
+    -------
+    distributed.Client
+        The client (close it, and its local cluster, when done).
+
+    Raises
+    ------
+    InputError
+        Without dask installed, or for a worker count out of range.
+    """
     try:
         from dask.distributed import Client, LocalCluster
     except ImportError:  # pragma: no cover - depends on the installation

@@ -1,6 +1,6 @@
 """Light sources: standard spectra, blackbody, laser, LED, files, scaling, scenario tables."""
 import math
-from importlib.resources import files
+from optogen._data import data_dir
 
 import numpy as np
 import pytest
@@ -32,7 +32,7 @@ def test_our_tables_equal_pvlib(name, pvlib_table):
 
 @pytest.mark.parametrize("fname", ["am15g.csv", "am15d.csv", "am0.csv"])
 def test_spectrum_files_carry_provenance(fname):
-    lines = files("optogen.spectra").joinpath(fname).read_text().splitlines()
+    lines = data_dir("spectra").joinpath(fname).read_text().splitlines()
     assert lines[0].startswith("# ") and "ASTM G173-03" in lines[0]      # project rule: provenance line
     assert lines[1] == "wavelength_nm,irradiance_W_m2_nm"
 

@@ -678,15 +678,43 @@ def load_scenario(source, overrides: Mapping[str, Any] | None = None, *, base_di
     Scenario
         The validated scenario.
     """
-    path = "<text>"
-    base = Path(base_dir) if base_dir is not None else Path.cwd()
-    text = None
     if isinstance(source, Mapping):        # an already parsed table (as tomllib gives it)
         data = copy.deepcopy(dict(source))
-        return _from_data(data, "", base_dir if base_dir is not None else Path.cwd(), path, overrides)
+        return _from_data(data, "", base_dir if base_dir is not None else Path.cwd(), "<text>", overrides)
+    data, text, path, base = read_toml(source)
+    return _from_data(data, text, Path(base_dir) if base_dir is not None and path == "<text>" else base,
+                      path, overrides)
+
+
+def read_toml(source) -> tuple[dict, str, str, Path]:
+    """Parse a scenario's TOML from a path or from the text itself, with the size and encoding checks.
+
+    Parameters
+    ----------
+    source : str or Path
+        A path to a .toml file, or the TOML text [-].
+
+    Returns
+    -------
+    data : dict
+        The parsed tables.
+    text : str
+        The TOML text.
+    path : str
+        The file, or "<text>".
+    base : Path
+        The folder relative paths refer to: the file's own folder, or the current folder.
+
+    Raises
+    ------
+    InputError
+        For a missing or unreadable file, more than `schema.MAX_TEXT_BYTES`, text that is not
+        UTF-8, or invalid TOML.
+    """
     if not isinstance(source, (str, Path)):
         raise InputError("scenario", type(source).__name__,
                          "a path to a .toml file, the TOML text or a table (dict)")
+    path, base = "<text>", Path.cwd()
     if isinstance(source, Path) or ("\n" not in source and source.strip().endswith(".toml")):
         p = Path(source)
         if not p.is_file():
@@ -710,7 +738,7 @@ def load_scenario(source, overrides: Mapping[str, Any] | None = None, *, base_di
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError("scenario", path, f"valid TOML ({exc})") from None
-    return _from_data(data, text, base, path, overrides)
+    return data, text, path, base
 
 
 def _from_data(data: dict, text: str, base: Path, path: str, overrides) -> Scenario:

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import copy
 import dataclasses
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Mapping
@@ -21,7 +20,7 @@ from optogen import schema
 from optogen.constants import q_C
 from optogen.errors import InputError
 from optogen.recombination import j0_at_temperature_fA_cm2
-from optogen.scenario import UNIT_SUFFIXES, Scenario, load_scenario, parse_overrides
+from optogen.scenario import UNIT_SUFFIXES, Scenario, load_scenario, parse_overrides, read_toml
 
 from . import keys as _keys
 from .data import LifetimeData, folder_files, read_lifetime_csv, read_record_csv
@@ -67,28 +66,9 @@ def load(source, overrides: Mapping[str, Any] | None = None, *, base_dir=None):
         text, where = source.text, source.path
     elif isinstance(source, Mapping):
         data = copy.deepcopy(dict(source))
-    elif isinstance(source, (str, Path)):
-        p = Path(source) if isinstance(source, Path) or ("\n" not in str(source) and str(source).strip().endswith(".toml")) \
-            else None
-        if p is not None:
-            if not p.is_file():
-                raise InputError("scenario", str(source), "an existing .toml file")
-            raw = p.read_bytes()
-            if len(raw) > schema.MAX_TEXT_BYTES:
-                raise InputError("scenario", str(p), f"a file of at most {schema.MAX_TEXT_BYTES} bytes")
-            try:
-                text = raw.decode("utf-8")
-            except UnicodeDecodeError as exc:
-                raise InputError("scenario", str(p), "UTF-8 text", f"byte {exc.start}: {exc.reason}") from None
-            base, where = base or p.resolve().parent, str(p)
-        else:
-            text = str(source)
-        try:
-            data = tomllib.loads(text)
-        except tomllib.TOMLDecodeError as exc:
-            raise InputError("scenario", str(p or "<text>"), f"valid TOML ({exc})") from None
     else:
-        raise InputError("scenario", type(source).__name__, "a path to a .toml file, the TOML text or a table")
+        data, text, where, own_base = read_toml(source)
+        base = base or (own_base if where != "<text>" else None)
     own = {}
     for name in OWN_SECTIONS:
         table = data.pop(name, None)

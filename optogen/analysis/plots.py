@@ -76,7 +76,7 @@ def jv_figure(res) -> Figure:
     fig = _fig()
     ax = fig.add_subplot()
     ax.plot(im["jv_voltage_V"], im["jv_current_mA_cm2"], color="k")
-    ax.set_xlabel("implied voltage [V]")
+    ax.set_xlabel("implied voltage (V)")
     ax.set_ylabel("current density (mA cm^-2)")
     ax.set_title(f"Implied J–V at 1 sun: iVoc {im['voc_1sun_V'] * 1e3:.1f} mV, iFF {im['ff_1sun'] * 100:.2f} %")
     ax.set_ylim(bottom=0)
@@ -93,7 +93,7 @@ def dpss_figure(dpss) -> Figure:
     a1.set_ylabel("k = σn/σp")
     a2.semilogy(x, dpss.chi2, color="k")
     a2.set_ylabel("χ²")
-    a2.set_xlabel("E_t − E_v [eV]")
+    a2.set_xlabel("E_t − E_v (eV)")
     for br in dpss.branches:
         for ax in (a1, a2):
             ax.axvspan(*br.level_interval_eV, color="tab:red" if br.half == "upper" else "tab:blue", alpha=0.2)

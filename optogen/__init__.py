@@ -68,4 +68,25 @@ def run(scenario, *, spectrum=None, **kwargs):
     return res
 
 
-__all__ = ["InputError", "Scenario", "load_scenario", "run", "__version__"]
+def open_result(path):
+    """Open a ``result.nc`` written by optogen as `Result.to_dataset` has it.
+
+    The file stores noise densities and D* squared (their half-power units are not UDUNITS,
+    which CF requires); this gives them back under their own names and units.  See
+    `optogen.pipeline.result.open_result`.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The NetCDF file.
+
+    Returns
+    -------
+    xarray.Dataset
+        The result Dataset (data read on access).
+    """
+    from .pipeline.result import open_result as _open
+    return _open(path)
+
+
+__all__ = ["InputError", "Scenario", "load_scenario", "open_result", "run", "__version__"]

@@ -122,7 +122,10 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
     Booleans as int8 flags (CF 1.10 section 3.5: ``flag_values`` an array of the variable's
     type, ``flag_meanings``; xarray's ``dtype = "bool"`` marker reads them back as booleans);
     strings as variable-length strings without units; numbers zlib-compressed with a NaN
-    fill value; coordinates without a fill value (CF 2.5.1).
+    fill value; integers that fit as netCDF's classic 32-bit int (counts: older CF checkers and
+    netCDF-3 tools refuse int64); coordinates without a fill value (CF 2.5.1); quantities in a half-power unit
+    (noise densities, D*) squared, since UDUNITS-2 cannot write their units
+    (`optogen.pipeline.result.to_file_form`; `optogen.open_result` takes the roots back).
 
     Parameters
     ----------
@@ -140,8 +143,8 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
     ----------
     NetCDF Climate and Forecast (CF) Metadata Conventions, version 1.10, sections 2.5.1 and 3.5.
     """
-    from .pipeline.result import ZLIB_LEVEL
-    out = ds.copy()
+    from .pipeline.result import ZLIB_LEVEL, to_file_form
+    out = to_file_form(ds)
     encoding: dict[str, dict] = {}
     for name, var in out.variables.items():
         kind = var.dtype.kind
@@ -159,6 +162,9 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
             out[name].attrs.update(var.attrs)
             out[name].attrs.pop("units", None)
             encoding.setdefault(name, {}).update(dtype=str)
+        elif kind in "iu" and var.dtype.itemsize > 4 and var.size and (
+                np.iinfo(np.int32).min <= var.values.min() and var.values.max() <= np.iinfo(np.int32).max):
+            encoding.setdefault(name, {})["dtype"] = np.int32      # counts: netCDF's classic int
         elif kind == "f" and name not in out.coords and var.ndim:
             encoding.setdefault(name, {}).update(zlib=True, complevel=ZLIB_LEVEL, shuffle=True)
     return out, encoding

@@ -227,12 +227,39 @@ UNIT_SUFFIXES: dict[str, str] = {
     "cm3": "cm^-3", "cm2": "cm^2", "um": "um", "nm": "nm", "mm": "mm", "cm": "cm", "eV": "eV", "mV": "mV",
     "K": "K", "V": "V", "s": "s", "W": "W", "A": "A", "S": "S", "deg": "degree", "Hz": "Hz",
     "suns": "kW m^-2", "A_Hz05": "A Hz^(-1/2)", "ohm_cm2": "ohm cm^2",
+    "A2_Hz": "A^2 Hz^-1", "cm2_Hz_W2": "cm^2 Hz W^-2",
 }
 _SUFFIX_ORDER = sorted(UNIT_SUFFIXES, key=len, reverse=True)
 
 #: units that UDUNITS-2 (cf-units, the CF checkers) cannot express: it has no fractional
 #: exponents (cf_units.Unit("Hz").root(2) is refused as meaningless); pint reads them right
 HALF_POWER_UNITS = ("A Hz^(-1/2)", "cm Hz^(1/2) W^-1")
+
+#: the quantities in a half-power unit are written to NetCDF as their squares, whose units
+#: UDUNITS-2 expresses: suffix -> suffix of the square ("noise_total_A_Hz05" is written as
+#: "noise_total_squared_A2_Hz" [A^2 Hz^-1], the one-sided noise power spectral density;
+#: "detectivity_cm_Hz05_W" as "detectivity_squared_cm2_Hz_W2" [cm^2 Hz W^-2])
+SQUARED_IN_FILES: dict[str, str] = {"A_Hz05": "A2_Hz", "cm_Hz05_W": "cm2_Hz_W2"}
+
+
+def squared_name(name: str) -> str | None:
+    """The NetCDF name of the square of a half-power quantity, or None for any other name.
+
+    Parameters
+    ----------
+    name : str
+        A Dataset variable name, e.g. "detectivity_cm_Hz05_W" [-].
+
+    Returns
+    -------
+    str or None
+        "detectivity_squared_cm2_Hz_W2" for that example (unit from `UNIT_SUFFIXES`); None
+        when the name's unit is not a half power [-].
+    """
+    for suffix, square in SQUARED_IN_FILES.items():
+        if name.endswith("_" + suffix):
+            return f"{name[: -len(suffix)]}squared_{square}"
+    return None
 
 
 def dim_name(key: str) -> str:

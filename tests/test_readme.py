@@ -2,6 +2,8 @@
 import re
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parents[1]
 
 
@@ -28,3 +30,18 @@ def test_main_job_command_names_a_bundled_scenario():
     run_cmd = _quick_start_commands()[0]
     scen = re.search(r"scenarios/\S+\.toml", run_cmd).group(0)
     assert (ROOT / scen).is_file()
+
+
+def test_the_python_example_runs(monkeypatch):
+    # the example under "Using it from Python" runs as printed, from the checkout (its paths)
+    import matplotlib
+    matplotlib.use("Agg")
+    pytest.importorskip("pint_xarray")
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    section = text.split("## Using it from Python", 1)[1].split("\n## ", 1)[0]
+    code = re.search(r"```python\n(.+?)\n```", section, flags=re.S).group(1)
+    monkeypatch.chdir(ROOT)
+    names: dict = {}
+    exec(compile(code, "README.md (Using it from Python)", "exec"), names)
+    assert 0.0 < float(names["ds"]["implied_voc_V"]) < float(names["ds"]["bandgap_eV"])   # Voc below the gap
+    assert names["lamp"].to_dataset().attrs["spectrum_note"]

@@ -12,7 +12,7 @@ import re
 import pytest
 
 from optogen import schema
-from optogen.scenario import HALF_POWER_UNITS, UNIT_SUFFIXES, unit_of
+from optogen.scenario import HALF_POWER_UNITS, SQUARED_IN_FILES, UNIT_SUFFIXES, squared_name, unit_of
 
 pint = pytest.importorskip("pint")
 cf_units = pytest.importorskip("cf_units")
@@ -50,6 +50,8 @@ SI = {
     "Hz": (1.0, {"s": -1}),
     "A Hz^(-1/2)": (1.0, {"A": 1, "s": 0.5}),                     # Hz^(-1/2) = s^(1/2)
     "cm Hz^(1/2) W^-1": (1e-2, {"m": -1, "kg": -1, "s": 2.5}),    # cm s^-1/2 kg^-1 m^-2 s^3
+    "A^2 Hz^-1": (1.0, {"A": 2, "s": 1}),                         # the squares written to NetCDF
+    "cm^2 Hz W^-2": (1e-4, {"m": -2, "kg": -2, "s": 5}),          # cm^2 s^-1 kg^-2 m^-4 s^6
 }
 
 _PINT_BASE = {"meter": "m", "kilogram": "kg", "second": "s", "ampere": "A", "kelvin": "K", "radian": None}
@@ -120,3 +122,23 @@ def test_unit_of_names():
     assert unit_of("detectivity_cm_Hz05_W") == "cm Hz^(1/2) W^-1"
     assert unit_of("noise_total_A_Hz05") == "A Hz^(-1/2)"
     assert unit_of("implied_ff") == "1"
+
+
+@pytest.mark.parametrize("suffix", sorted(SQUARED_IN_FILES))
+def test_each_half_power_is_written_as_a_square_udunits_reads(suffix):
+    half, square = UNIT_SUFFIXES[suffix], UNIT_SUFFIXES[SQUARED_IN_FILES[suffix]]
+    assert half in HALF_POWER_UNITS and square not in HALF_POWER_UNITS
+    # the square's SI form is the half-power unit's, squared (factor squared, exponents doubled)
+    f_half, d_half = SI[half]
+    f_sq, d_sq = SI[square]
+    assert f_sq == pytest.approx(f_half ** 2, rel=1e-12)
+    assert d_sq == pytest.approx({k: 2 * v for k, v in d_half.items()})
+    assert (UREG.Quantity(1.0, half) ** 2).to(square).magnitude == pytest.approx(1.0, rel=1e-12)
+    cf_units.Unit(square)                             # UDUNITS-2 parses it
+
+
+def test_squared_names():
+    assert squared_name("noise_total_A_Hz05") == "noise_total_squared_A2_Hz"
+    assert squared_name("detectivity_blip_cm_Hz05_W") == "detectivity_blip_squared_cm2_Hz_W2"
+    assert unit_of(squared_name("detectivity_cm_Hz05_W")) == "cm^2 Hz W^-2"
+    assert squared_name("responsivity_A_W") is None and squared_name("detectivity_over_blip") is None

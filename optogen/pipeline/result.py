@@ -23,7 +23,7 @@ import xarray as xr
 
 from .._version import __version__
 from ..errors import InputError
-from ..scenario import Scenario, dim_name, long_name, unit_of
+from ..scenario import Scenario, dim_name, long_name, squared_name, unit_of
 
 #: the CF version the files follow (global attribute ``Conventions``)
 CONVENTIONS = "CF-1.10"
@@ -434,6 +434,108 @@ def tidy_columns(ds: xr.Dataset) -> dict[str, np.ndarray]:
 
 
 # ---------------------------------------------------------------------------
+# Half powers in files: UDUNITS-2 (and with it CF) has integer exponents only
+# ---------------------------------------------------------------------------
+
+def _square_attrs(name: str, attrs: Mapping[str, Any]) -> dict:
+    """The attributes of the file variable holding the square of the half-power quantity `name`."""
+    out = {k: v for k, v in attrs.items() if k not in ("long_name", "units")}
+    out.update(long_name=f"square of the {attrs.get('long_name') or long_name(name)}",
+               units=unit_of(squared_name(name)), square_of=name,
+               square_of_units=attrs.get("units") or unit_of(name),
+               comment="UDUNITS-2 has no half powers, so this quantity is stored squared; "
+                       "optogen.open_result gives back its square root under the name square_of")
+    return out
+
+
+def to_file_form(ds: xr.Dataset) -> xr.Dataset:
+    """`ds` with every quantity in a half-power unit replaced by its square (NetCDF files).
+
+    Noise current densities [A Hz^(-1/2)] become noise power spectral densities [A^2 Hz^-1],
+    D* and D*_BLIP [cm Hz^(1/2) W^-1] their squares [cm^2 Hz W^-2], named by
+    `optogen.scenario.squared_name`, with the attributes ``square_of`` (the variable's name)
+    and ``square_of_units``: UDUNITS-2, which CF requires for ``units``, cannot write a half
+    power.  `from_file_form` is the inverse.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        A result Dataset (in memory).
+
+    Returns
+    -------
+    xarray.Dataset
+        A copy, variables in the same order.
+    """
+    out = ds.copy()
+    renames = {}
+    for name, da in ds.data_vars.items():
+        square = squared_name(name)
+        if square and da.dtype.kind == "f":
+            square_da = da * da
+            square_da.attrs = _square_attrs(name, da.attrs)
+            out[name] = square_da
+            renames[name] = square
+    return out.rename(renames) if renames else out
+
+
+def from_file_form(ds: xr.Dataset) -> xr.Dataset:
+    """The inverse of `to_file_form`: the square root of every variable with ``square_of``.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        A Dataset read from an optogen NetCDF file (or `to_file_form`'s output).
+
+    Returns
+    -------
+    xarray.Dataset
+        A copy with the half-power quantities back under their own names and units.  Data
+        still on disk stay there when dask is installed (the root is taken lazily, chunk by
+        chunk); without dask they are read.
+    """
+    out = ds.copy()
+    renames = {}
+    for name, da in ds.data_vars.items():
+        original = da.attrs.get("square_of")
+        if not original:
+            continue
+        if da.size > STREAM_THRESHOLD:
+            try:
+                import dask.array  # noqa: F401  (a lazy root needs dask)
+                chunks = da.encoding.get("chunksizes")
+                da = da.chunk(dict(zip(da.dims, chunks)) if chunks else {})
+            except ImportError:
+                pass
+        attrs = {k: v for k, v in da.attrs.items() if k not in ("square_of", "square_of_units", "comment")}
+        attrs.update(long_name=long_name(original), units=da.attrs.get("square_of_units") or unit_of(original))
+        root = np.sqrt(da)
+        root.attrs = attrs
+        out[name] = root
+        renames[name] = original
+    return out.rename(renames) if renames else out
+
+
+def open_result(path) -> xr.Dataset:
+    """Open a ``result.nc`` that optogen wrote, with its quantities as `Result.to_dataset` has them.
+
+    ``xarray.open_dataset`` reads the file as stored (CF: noise and D* squared); this also takes
+    their square roots back (`from_file_form`).
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The NetCDF file.
+
+    Returns
+    -------
+    xarray.Dataset
+        The result Dataset (data read on access).
+    """
+    return from_file_form(xr.open_dataset(path, engine="h5netcdf"))
+
+
+# ---------------------------------------------------------------------------
 # Large sweeps: chunk by chunk to a chunked, compressed NetCDF4 file
 # ---------------------------------------------------------------------------
 
@@ -533,7 +635,8 @@ class ChunkStore:
         self.size = int(np.prod(self.shape))
         self.order = [dim_name(k) for k in order] if order is not None else list(self.dims)
         self.units = {(b, k): u for b, vals in (names_units or {}).items() for k, u in vals.items()}
-        self._names: dict[tuple[str, str], str] = {}
+        self._names: dict[tuple[str, str], str] = {}      # (block, key) -> name in the file
+        self._squared: set[tuple[str, str]] = set()         # written squared (`to_file_form`)
         self._file = h5netcdf.File(self.path, "w")
         # on disk in the scenario's axis order (the Dataset's); the chunks arrive in grid order
         self._perm = [self.dims.index(d) for d in self.order]
@@ -557,11 +660,14 @@ class ChunkStore:
         return tuple(reversed(chunks))
 
     def _variable(self, block: str, key: str, sample: np.ndarray):
-        name = var_name(block, key)
         if (block, key) in self._names:
-            return self._file.variables[name]
-        self._names[(block, key)] = name
+            return self._file.variables[self._names[(block, key)]]
+        name = var_name(block, key)
         kind = sample.dtype.kind
+        square = squared_name(name) if kind == "f" else None
+        self._names[(block, key)] = square or name
+        if square:
+            self._squared.add((block, key))
         if name == "converged" or kind == "b":
             dtype, fill = np.int8, None         # no _FillValue: xarray would mask the 0 (false) flags
         elif kind in "OUS":
@@ -579,11 +685,13 @@ class ChunkStore:
         else:
             dtype, fill = sample.dtype if kind == "f" else np.float64, np.nan
         opts = dict(chunks=self._chunks, compression="gzip", compression_opts=ZLIB_LEVEL, shuffle=True)
-        v = self._file.create_variable(name, tuple(self.order), dtype, fillvalue=fill, **opts)
+        v = self._file.create_variable(square or name, tuple(self.order), dtype, fillvalue=fill, **opts)
         attrs = var_attrs(name, sample.astype(bool) if dtype is np.int8 else sample, block, key)
         units = self.units.get((block, key))
         if units is not None and "units" in attrs:
             attrs["units"] = units
+        if square:
+            attrs = _square_attrs(name, attrs)
         if dtype is np.int8:             # a flag: CF 3.5, and xarray's own marker to read it back as bool
             attrs.update(flag_values=np.array([0, 1], dtype=np.int8), flag_meanings="false true", dtype="bool")
         for k, val in attrs.items():
@@ -617,6 +725,8 @@ class ChunkStore:
                 tail: list[int] = []
                 if v.dtype == np.int8:
                     arr = arr.astype(np.int8)
+                elif (block, key) in self._squared:
+                    arr = arr * arr
                 elif arr.dtype.kind in "OUS":
                     arr = _characters(arr)
                     tail = [STRING_WIDTH]
@@ -654,4 +764,4 @@ class ChunkStore:
             self._file.attrs[k] = val
         self._file.attrs["optogen_storage"] = "chunked NetCDF4 written chunk by chunk (optogen ChunkStore)"
         self._file.close()
-        return xr.open_dataset(self.path, engine="h5netcdf")      # already in the scenario's order
+        return open_result(self.path)      # already in the scenario's order

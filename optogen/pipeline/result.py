@@ -12,6 +12,7 @@ NetCDF4 file, chunk by chunk, so that memory is bounded by the chunk.
 from __future__ import annotations
 
 import datetime as _dt
+import importlib.util
 import math
 import sys
 from dataclasses import dataclass, field
@@ -500,13 +501,9 @@ def from_file_form(ds: xr.Dataset) -> xr.Dataset:
         original = da.attrs.get("square_of")
         if not original:
             continue
-        if da.size > STREAM_THRESHOLD:
-            try:
-                import dask.array  # noqa: F401  (a lazy root needs dask)
-                chunks = da.encoding.get("chunksizes")
-                da = da.chunk(dict(zip(da.dims, chunks)) if chunks else {})
-            except ImportError:
-                pass
+        if da.size > STREAM_THRESHOLD and importlib.util.find_spec("dask") is not None:
+            chunks = da.encoding.get("chunksizes")            # a lazy root, chunk by chunk as on disk
+            da = da.chunk(dict(zip(da.dims, chunks)) if chunks else {})
         attrs = {k: v for k, v in da.attrs.items() if k not in ("square_of", "square_of_units", "comment")}
         attrs.update(long_name=long_name(original), units=da.attrs.get("square_of_units") or unit_of(original))
         root = np.sqrt(da)

@@ -68,25 +68,13 @@ def run(scenario, *, spectrum=None, **kwargs):
     return res
 
 
-def open_result(path):
-    """Open a ``result.nc`` written by optogen as `Result.to_dataset` has it.
-
-    The file stores noise densities and D* squared (their half-power units are not UDUNITS,
-    which CF requires); this gives them back under their own names and units.  See
-    `optogen.pipeline.result.open_result`.
-
-    Parameters
-    ----------
-    path : str or pathlib.Path
-        The NetCDF file.
-
-    Returns
-    -------
-    xarray.Dataset
-        The result Dataset (data read on access).
-    """
-    from .pipeline.result import open_result as _open
-    return _open(path)
+def __getattr__(name):
+    # optogen.open_result (pipeline.result.open_result): imported when first asked for, so that
+    # `import optogen` and `optogen --version` stay free of xarray
+    if name == "open_result":
+        from .pipeline.result import open_result
+        return open_result
+    raise AttributeError(f"module 'optogen' has no attribute {name!r}")
 
 
 __all__ = ["InputError", "Scenario", "load_scenario", "open_result", "run", "__version__"]

@@ -374,7 +374,7 @@ def passes(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambertian")
     return Passes(c, down, up, (down + up) * one_minus_T)
 
 
-def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambertian", *, path=None):
+def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambertian"):
     """Absorptance A of the absorber for a light path (see `passes`); broadcasts.
 
     Parameters
@@ -389,8 +389,6 @@ def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambert
         Front and rear reflectance [-].
     light_path : str
         "single", "mirror" or "lambertian" (a registered "light_path" model) [-].
-    path : str, optional
-        Former name of `light_path`, kept for callers that pass it by keyword [-].
 
     Returns
     -------
@@ -401,6 +399,4 @@ def absorptance(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path="lambert
     ----------
     The chosen light path's (`optogen.registry.models("light_path")`).
     """
-    if path is not None:
-        light_path = path
     return passes(alpha_cm1, thickness_cm, n, front_R, rear_R, light_path).absorptance

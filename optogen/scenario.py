@@ -182,10 +182,10 @@ class Scenario:
 
     def _repr_html_(self) -> str:
         import html
-        rows = "".join(f"<tr><td><code>{html.escape(k)}</code></td><td>{html.escape(_short(v))}</td></tr>"
+        rows = "".join(f"<tr><td><code>{html.escape(k)}</code></td><td>{html.escape(_clip_text(v))}</td></tr>"
                        for k, v in _flat_items(self.data))
         rows += "".join(f"<tr><td><code>sweep: {html.escape(a.key)}</code></td><td>{a.values.size} values, "
-                        f"{html.escape(_short(a.values.tolist()))}</td></tr>" for a in self.sweep)
+                        f"{html.escape(_clip_text(a.values.tolist()))}</td></tr>" for a in self.sweep)
         return (f"<div><b>optogen Scenario</b>: {html.escape(self.title)} ({self.n_points} point"
                 f"{'s' if self.n_points != 1 else ''})<table>{rows}</table></div>")
 
@@ -413,7 +413,7 @@ def label(name: str, units: str | None = None) -> str:
     return f"{long_name(name)} ({units})" if units not in ("1", "") else long_name(name)
 
 
-def _short(v, width: int = 60) -> str:
+def _clip_text(v, width: int = 60) -> str:
     text = repr(v) if not isinstance(v, str) else v
     return text if len(text) <= width else text[: width - 3] + "..."
 

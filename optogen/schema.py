@@ -824,29 +824,29 @@ def check_sweep_values(path: str, values) -> np.ndarray:
     field = f"sweep.{path}"
     key = key_for(path)
     if key is None:
-        raise InputError(field, _short(values), "a dotted scenario key such as \"light.suns\"", _hint(path))
+        raise InputError(field, _abbreviate_values(values), "a dotted scenario key such as \"light.suns\"", _hint(path))
     if key.sweep is None:
-        raise InputError(field, _short(values), f"a key that can be swept; {path} takes {key.allowed()}")
+        raise InputError(field, _abbreviate_values(values), f"a key that can be swept; {path} takes {key.allowed()}")
     if not values:
         raise InputError(field, values, "a non-empty list of values")
     kinds = {("number" if isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, (bool, np.bool_))
               else type(v).__name__) for v in values}
     if len(kinds) != 1:
-        raise InputError(field, _short(values), "values all of one kind (all numbers or all booleans)")
+        raise InputError(field, _abbreviate_values(values), "values all of one kind (all numbers or all booleans)")
     kind = kinds.pop()
     if kind == "number":
         if INTEGER in key.kinds and NUMBER not in key.kinds:
             if not all(isinstance(v, (int, np.integer)) for v in values):
-                raise InputError(field, _short(values), key.allowed())
+                raise InputError(field, _abbreviate_values(values), key.allowed())
             for v in values:
                 check_value(path, v, key)
             return np.asarray([int(v) for v in values], dtype=np.int64)
         if NUMBER not in key.kinds:
-            raise InputError(field, _short(values), key.allowed())
+            raise InputError(field, _abbreviate_values(values), key.allowed())
         try:
             arr = np.asarray([float(v) for v in values], dtype=float)
         except OverflowError:
-            raise InputError(field, _short(values), key.allowed(), "an integer is too large") from None
+            raise InputError(field, _abbreviate_values(values), key.allowed(), "an integer is too large") from None
         bad = _bad_mask(key, arr)
         if np.any(bad):
             raise InputError(path, float(arr[bad][0]), key.allowed(),
@@ -856,7 +856,7 @@ def check_sweep_values(path: str, values) -> np.ndarray:
         for v in values:
             check_value(path, v, key)
         return np.asarray(values, dtype=bool)
-    raise InputError(field, _short(values), "numbers or booleans (strings, tables and lists are not swept: "
+    raise InputError(field, _abbreviate_values(values), "numbers or booleans (strings, tables and lists are not swept: "
                      "run once per value)")
 
 
@@ -870,7 +870,7 @@ def _bad_mask(key: Key, arr: np.ndarray) -> np.ndarray:
     return bad
 
 
-def _short(values):
+def _abbreviate_values(values):
     if isinstance(values, (list, tuple)) and len(values) > 4:
         return f"[{', '.join(map(repr, values[:3]))}, ... ({len(values)} values)]"
     return values

@@ -161,5 +161,5 @@ def test_light_path_names():
 ])
 def test_absorptance_bad_input(args, field):
     with pytest.raises(InputError) as err:
-        optics.absorptance(*args, path="lambertian")
+        optics.absorptance(*args, light_path="lambertian")
     assert err.value.field == field

@@ -77,4 +77,8 @@ def __getattr__(name):
     raise AttributeError(f"module 'optogen' has no attribute {name!r}")
 
 
+def __dir__():
+    return sorted([*globals(), "open_result"])
+
+
 __all__ = ["InputError", "Scenario", "load_scenario", "open_result", "run", "__version__"]

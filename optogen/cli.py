@@ -195,16 +195,16 @@ def _dispatch(args, argv=None) -> int:
                          "add --yes, and --out DIR to keep the result on disk")
     from .pipeline import run
     from . import report
+    from .pipeline.result import command_line
     with warnings.catch_warnings(record=True) as caught:     # one line each, no source lines
         warnings.simplefilter("always")
         res = run(sc, progress=False if (args.quiet or args.json) else None,
                   workers=args.workers, scheduler=args.scheduler)
+        res.dataset.attrs["history"] = (f"{res.dataset.attrs.get('created', '')} "
+                                        f"{command_line() if argv is None else 'optogen ' + _join(argv)}").strip()
+        written = report.write_all(res, Path(args.out)) if args.out else []
     for w in caught:
         print(f"optogen: warning: {' '.join(str(w.message).split())}", file=sys.stderr)
-    from .pipeline.result import command_line
-    res.dataset.attrs["history"] = (f"{res.dataset.attrs.get('created', '')} "
-                                    f"{command_line() if argv is None else 'optogen ' + _join(argv)}").strip()
-    written = report.write_all(res, Path(args.out)) if args.out else []
     if args.json:
         print(json.dumps(res.to_dict(), indent=2, allow_nan=False))
     else:

@@ -21,6 +21,7 @@ import numpy as np
 import xarray as xr
 
 from .errors import InputError
+from .scenario import squared_name
 
 
 def file_mode() -> int:
@@ -171,7 +172,10 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
 
 
 def write_netcdf(path: Path, ds: xr.Dataset) -> Path:
-    """NetCDF4 (HDF5, engine h5netcdf), CF 1.10, compressed; read with ``xarray.open_dataset``.
+    """NetCDF4 (HDF5, engine h5netcdf), CF 1.10, compressed; read with `optogen.open_result`.
+
+    ``xarray.open_dataset`` reads the file as stored: CF as it is, with the quantities in a
+    half-power unit squared (`netcdf_ready`); `optogen.open_result` gives them back.
 
     A Dataset already on disk as a chunked store (`optogen.pipeline.result.ChunkStore`, a
     large sweep) is copied block by block, never loaded whole; its global attributes and any
@@ -204,12 +208,13 @@ def write_netcdf(path: Path, ds: xr.Dataset) -> Path:
 def _update_store(path: Path, ds: xr.Dataset) -> None:
     """Bring a copied chunked store up to `ds`: global attributes and scalar variables added later."""
     import h5netcdf
+    from .pipeline.result import to_file_form
     with h5netcdf.File(path, "a") as f:
         for k, v in ds.attrs.items():
             f.attrs[k] = v
-        for name, da in ds.data_vars.items():
-            if name in f.variables or da.ndim:
-                continue
+        added = [n for n, da in ds.data_vars.items()
+                 if not da.ndim and (squared_name(n) or n) not in f.variables]
+        for name, da in to_file_form(ds[added]).data_vars.items():
             value = np.asarray(da.values)
             if value.dtype.kind in "OUS":
                 import h5py

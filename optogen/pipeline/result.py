@@ -12,7 +12,6 @@ NetCDF4 file, chunk by chunk, so that memory is bounded by the chunk.
 from __future__ import annotations
 
 import datetime as _dt
-import importlib.util
 import math
 import sys
 from dataclasses import dataclass, field
@@ -21,6 +20,8 @@ from typing import Any, Mapping, Sequence
 
 import numpy as np
 import xarray as xr
+from xarray.backends import BackendArray
+from xarray.core import indexing      # the lazy-array API of xarray's backend guide
 
 from .._version import __version__
 from ..errors import InputError
@@ -438,25 +439,68 @@ def tidy_columns(ds: xr.Dataset) -> dict[str, np.ndarray]:
 # Half powers in files: UDUNITS-2 (and with it CF) has integer exponents only
 # ---------------------------------------------------------------------------
 
+#: the note added to the ``comment`` of a squared file variable (removed again by `from_file_form`)
+SQUARE_NOTE = ("UDUNITS-2 has no half powers, so this quantity is stored squared; "
+               "optogen.open_result gives back its square root under the name square_of.")
+
+#: the largest value whose square is a finite float64 [-]
+SQUARE_MAX = math.sqrt(np.finfo(np.float64).max)
+
+
 def _square_attrs(name: str, attrs: Mapping[str, Any]) -> dict:
     """The attributes of the file variable holding the square of the half-power quantity `name`."""
-    out = {k: v for k, v in attrs.items() if k not in ("long_name", "units")}
+    out = {k: v for k, v in attrs.items() if k not in ("long_name", "units", "comment")}
     out.update(long_name=f"square of the {attrs.get('long_name') or long_name(name)}",
                units=unit_of(squared_name(name)), square_of=name,
                square_of_units=attrs.get("units") or unit_of(name),
-               comment="UDUNITS-2 has no half powers, so this quantity is stored squared; "
-                       "optogen.open_result gives back its square root under the name square_of")
+               comment=" ".join(filter(None, [SQUARE_NOTE, attrs.get("comment")])))
     return out
+
+
+def square_values(name: str, values) -> np.ndarray:
+    """The squares written to a file for the half-power quantity `name`.
+
+    Parameters
+    ----------
+    name : str
+        The variable's name (in memory), e.g. "detectivity_blip_cm_Hz05_W".
+    values : array_like
+        Its values, numbers of any kind.
+
+    Returns
+    -------
+    numpy.ndarray
+        values^2 as float64.  A finite value above `SQUARE_MAX` (about 1.3e154, e.g. D*_BLIP
+        of an almost black background) has no finite square: it is stored as inf, with a
+        `PhysicsNoteWarning` that says how many.
+
+    Raises
+    ------
+    TypeError
+        For values that are not numbers (a programming error).
+    """
+    a = np.asarray(values)
+    if a.dtype.kind not in "fiu":
+        raise TypeError(f"{name}: half-power values must be numbers, not {a.dtype}")
+    a = a.astype(np.float64)
+    big = int(np.count_nonzero(np.isfinite(a) & (np.abs(a) > SQUARE_MAX)))
+    if big:
+        import warnings
+        from ..errors import PhysicsNoteWarning
+        warnings.warn(f"{name}: {big} value(s) above {SQUARE_MAX:.3g}, whose squares overflow; "
+                      "the NetCDF file stores them as inf (the JSON and CSV keep the values)", PhysicsNoteWarning)
+    with np.errstate(over="ignore"):
+        return a * a
 
 
 def to_file_form(ds: xr.Dataset) -> xr.Dataset:
     """`ds` with every quantity in a half-power unit replaced by its square (NetCDF files).
 
     Noise current densities [A Hz^(-1/2)] become noise power spectral densities [A^2 Hz^-1],
-    D* and D*_BLIP [cm Hz^(1/2) W^-1] their squares [cm^2 Hz W^-2], named by
-    `optogen.scenario.squared_name`, with the attributes ``square_of`` (the variable's name)
-    and ``square_of_units``: UDUNITS-2, which CF requires for ``units``, cannot write a half
-    power.  `from_file_form` is the inverse.
+    D* and D*_BLIP [cm Hz^(1/2) W^-1] their squares [cm^2 Hz W^-2] (`square_values`), named
+    by `optogen.scenario.squared_name`, with the attributes ``square_of`` (the variable's
+    name) and ``square_of_units``: UDUNITS-2, which CF requires for ``units``, cannot write a
+    half power.  `from_file_form` is the inverse.
 
     Parameters
     ----------
@@ -472,12 +516,26 @@ def to_file_form(ds: xr.Dataset) -> xr.Dataset:
     renames = {}
     for name, da in ds.data_vars.items():
         square = squared_name(name)
-        if square and da.dtype.kind == "f":
-            square_da = da * da
-            square_da.attrs = _square_attrs(name, da.attrs)
-            out[name] = square_da
+        if square:
+            out[name] = da.copy(data=square_values(name, da.values))
+            out[name].attrs = _square_attrs(name, da.attrs)
             renames[name] = square
     return out.rename(renames) if renames else out
+
+
+class _SquareRoot(BackendArray):
+    """The square root of a Variable's data, taken on the part that is indexed (read lazily)."""
+
+    def __init__(self, variable: xr.Variable):
+        self.variable = variable
+        self.shape = variable.shape
+        self.dtype = np.dtype(np.float64)
+
+    def __getitem__(self, key):
+        return indexing.explicit_indexing_adapter(key, self.shape, indexing.IndexingSupport.BASIC, self._root)
+
+    def _root(self, key):
+        return np.sqrt(np.asarray(self.variable[key].values, dtype=np.float64))
 
 
 def from_file_form(ds: xr.Dataset) -> xr.Dataset:
@@ -491,9 +549,9 @@ def from_file_form(ds: xr.Dataset) -> xr.Dataset:
     Returns
     -------
     xarray.Dataset
-        A copy with the half-power quantities back under their own names and units.  Data
-        still on disk stay there when dask is installed (the root is taken lazily, chunk by
-        chunk); without dask they are read.
+        A copy with the half-power quantities back under their own names and units.  The
+        roots are taken lazily, on the part of the data that is read (a file's data stay on
+        disk until then; no dask needed).
     """
     out = ds.copy()
     renames = {}
@@ -501,14 +559,13 @@ def from_file_form(ds: xr.Dataset) -> xr.Dataset:
         original = da.attrs.get("square_of")
         if not original:
             continue
-        if da.size > STREAM_THRESHOLD and importlib.util.find_spec("dask") is not None:
-            chunks = da.encoding.get("chunksizes")            # a lazy root, chunk by chunk as on disk
-            da = da.chunk(dict(zip(da.dims, chunks)) if chunks else {})
         attrs = {k: v for k, v in da.attrs.items() if k not in ("square_of", "square_of_units", "comment")}
+        comment = str(da.attrs.get("comment", "")).replace(SQUARE_NOTE, "", 1).strip()
+        if comment:
+            attrs["comment"] = comment
         attrs.update(long_name=long_name(original), units=da.attrs.get("square_of_units") or unit_of(original))
-        root = np.sqrt(da)
-        root.attrs = attrs
-        out[name] = root
+        lazy = indexing.LazilyIndexedArray(_SquareRoot(da.variable))
+        out[name] = xr.Variable(da.dims, lazy, attrs)
         renames[name] = original
     return out.rename(renames) if renames else out
 
@@ -661,11 +718,12 @@ class ChunkStore:
             return self._file.variables[self._names[(block, key)]]
         name = var_name(block, key)
         kind = sample.dtype.kind
-        square = squared_name(name) if kind == "f" else None
+        square = squared_name(name)
         self._names[(block, key)] = square or name
         if square:
             self._squared.add((block, key))
-        if name == "converged" or kind == "b":
+            dtype, fill = np.float64, np.nan
+        elif name == "converged" or kind == "b":
             dtype, fill = np.int8, None         # no _FillValue: xarray would mask the 0 (false) flags
         elif kind in "OUS":
             # fixed-width characters (CF 2.2), not variable-length strings: xarray reads those
@@ -723,7 +781,7 @@ class ChunkStore:
                 if v.dtype == np.int8:
                     arr = arr.astype(np.int8)
                 elif (block, key) in self._squared:
-                    arr = arr * arr
+                    arr = square_values(var_name(block, key), arr)
                 elif arr.dtype.kind in "OUS":
                     arr = _characters(arr)
                     tail = [STRING_WIDTH]

@@ -59,7 +59,7 @@ def test_half_powers_are_stored_squared_and_open_result_takes_the_roots(demo_fil
         assert sq.attrs["units"] in ("A^2 Hz^-1", "cm^2 Hz W^-2")
         np.testing.assert_allclose(sq.values, mem[name].values ** 2, rtol=1e-15)
     back = optogen.open_result(path)
-    assert set(back.data_vars) == set(mem.data_vars)        # same names (the order is the HDF5 library's)
+    assert set(back.data_vars) == set(mem.data_vars)        # same names (h5netcdf 1.0 lists them sorted)
     for name in mem.data_vars:
         assert back[name].attrs.get("units") == mem[name].attrs.get("units"), name
         assert back[name].attrs["long_name"] == mem[name].attrs["long_name"], name
@@ -178,10 +178,16 @@ def test_chunk_store_equals_the_in_memory_dataset(tmp_path):
     # write_netcdf copies the store as it is on disk (never loading it whole) and adds later attributes
     assert lazy.encoding.get("source") == str(tmp_path / "grid.nc")
     lazy.attrs["history"] = "test"
+    lazy["background_limit_temperature_K"] = xr.DataArray(114.0, attrs={"units": "K", "long_name": "limit"})
+    lazy["noise_total_A_Hz05"] = xr.DataArray(3e-12, attrs={"units": "A Hz^(-1/2)", "long_name": "noise"})
     report.write_netcdf(tmp_path / "copy.nc", lazy)
     back = xr.open_dataset(tmp_path / "copy.nc", engine="h5netcdf")
     np.testing.assert_array_equal(back["n0_cm3"].transpose(*mem["n0_cm3"].dims).values, mem["n0_cm3"].values)
     assert back.attrs["history"] == "test"
+    # scalars added after the run go into the copy, a half power squared like the rest
+    assert float(back["background_limit_temperature_K"]) == 114.0
+    assert float(back["noise_total_squared_A2_Hz"]) == 3e-12 * 3e-12
+    assert cf_problems(tmp_path / "copy.nc") == []
 
 
 def test_chunk_store_refuses_a_chunk_outside_the_grid(tmp_path):
@@ -192,14 +198,35 @@ def test_chunk_store_refuses_a_chunk_outside_the_grid(tmp_path):
     store.close()
 
 
-def test_roots_of_a_large_store_are_taken_lazily(tmp_path, monkeypatch):
-    pytest.importorskip("dask")
-    from optogen.pipeline import result
-    axes = [SimpleNamespace(key="light.suns", values=np.geomspace(0.01, 10.0, 40))]
-    store = ChunkStore(tmp_path / "g.nc", axes, None)
-    store.write(0, _fake_blocks(np.arange(40), ("srh", "auger", "surface")))
-    monkeypatch.setattr(result, "STREAM_THRESHOLD", 10)         # as if the grid were large
-    lazy = store.close({"title": "t", "Conventions": "CF-1.10", "history": "h"})
-    d = lazy["detectivity_cm_Hz05_W"]
-    assert d.chunks is not None                                 # a dask array: nothing read yet
-    np.testing.assert_array_equal(d.values, 1e10 * (1.0 + np.arange(40.0)))
+def test_roots_of_a_store_are_taken_lazily_without_dask(tmp_path):
+    # 2e6 points of D* (16 MB as float64): opening the store and reading ten values takes the root
+    # of those ten only (memory measured with tracemalloc, which numpy reports to)
+    import tracemalloc
+    axes = [SimpleNamespace(key="light.suns", values=np.geomspace(0.01, 10.0, 2000)),
+            SimpleNamespace(key="absorber.temperature_K", values=np.linspace(200.0, 400.0, 1000))]
+    n = 2000 * 1000                               # small coordinates, a 16 MB variable
+    store = ChunkStore(tmp_path / "big.nc", axes, None)
+    for start in range(0, n, 500_000):
+        flat = np.arange(start, start + 500_000)
+        store.write(start, {"detector": {"detectivity_cm_Hz05_W": 1e10 * (1.0 + flat)}})
+    tracemalloc.start()
+    ds = store.close({"title": "t", "Conventions": "CF-1.10", "history": "h"})
+    part = ds["detectivity_cm_Hz05_W"].isel(light_suns=3, absorber_temperature_K=slice(10, 20)).values
+    peak = tracemalloc.get_traced_memory()[1]
+    tracemalloc.stop()
+    np.testing.assert_array_equal(part, 1e10 * (1.0 + np.arange(3010, 3020)))   # C order: flat = 1000 i + j
+    assert peak < 8_000_000                       # half the 16 MB of the variable (reading it whole: 32 MB)
+    assert ds["detectivity_cm_Hz05_W"].attrs["units"] == "cm Hz^(1/2) W^-1"
+
+
+def test_squares_that_overflow_are_stored_as_inf_with_a_warning(tmp_path):
+    from optogen.errors import PhysicsNoteWarning
+    from optogen.pipeline.result import SQUARE_MAX
+    ds = xr.Dataset({"detectivity_blip_cm_Hz05_W": ("light_suns", np.array([1e12, 2.0 * SQUARE_MAX, np.inf]),
+                                                    {"units": "cm Hz^(1/2) W^-1", "long_name": "D*_BLIP"})},
+                    coords={"light_suns": [0.1, 1.0, 10.0]},
+                    attrs={"title": "t", "Conventions": "CF-1.10", "history": "h"})
+    with pytest.warns(PhysicsNoteWarning, match="1 value"):
+        report.write_netcdf(tmp_path / "r.nc", ds)
+    back = optogen.open_result(tmp_path / "r.nc")["detectivity_blip_cm_Hz05_W"].values
+    assert back[0] == 1e12 and np.isposinf(back[1]) and np.isposinf(back[2])

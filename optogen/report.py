@@ -124,8 +124,8 @@ def netcdf_ready(ds: xr.Dataset) -> tuple[xr.Dataset, dict]:
     type, ``flag_meanings``; xarray's ``dtype = "bool"`` marker reads them back as booleans);
     strings as variable-length strings without units; numbers zlib-compressed with a NaN
     fill value; integers that fit as netCDF's classic 32-bit int (counts: older CF checkers and
-    netCDF-3 tools refuse int64); coordinates without a fill value (CF 2.5.1); quantities in a half-power unit
-    (noise densities, D*) squared, since UDUNITS-2 cannot write their units
+    netCDF-3 tools refuse int64); coordinates without a fill value (CF 2.5.1); quantities in a
+    half-power unit (noise densities, D*) squared, since UDUNITS-2 cannot write their units
     (`optogen.pipeline.result.to_file_form`; `optogen.open_result` takes the roots back).
 
     Parameters

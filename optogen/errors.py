@@ -3,6 +3,8 @@ from __future__ import annotations
 
 import contextlib
 import difflib
+import os
+from pathlib import Path
 from typing import Iterable, Mapping
 
 import numpy as np
@@ -140,6 +142,62 @@ def relabel(names: Mapping[str, str]):
             if (old.endswith(".") and exc.field.startswith(old)) or exc.field == old:
                 raise InputError(new + exc.field[len(old):], exc.value, exc.allowed, exc.hint) from None
         raise
+
+
+def read_text_file(path, field: str, what: str = "CSV file", max_bytes: int | None = None) -> str:
+    """The text of a user's file, UTF-8 (a byte-order mark dropped); every failure an InputError.
+
+    Parameters
+    ----------
+    path : str, os.PathLike or importlib.resources.abc.Traversable
+        The file (a bundled resource is read through its own ``read_bytes``).
+    field : str
+        The scenario field or option named in the errors, e.g. "light.path" [-].
+    what : str, optional
+        What the file should be, for the messages ("CSV file", "spectrum file", ...) [-].
+    max_bytes : int or None, optional
+        Refuse a file larger than this, before reading it [bytes].
+
+    Returns
+    -------
+    str
+        The decoded text.
+
+    Raises
+    ------
+    InputError
+        A missing or unreadable file, one above `max_bytes`, bytes that are not UTF-8; naming
+        `field` and the path.
+    """
+    name = str(path)
+    local = isinstance(path, (str, os.PathLike))
+    try:
+        if local and max_bytes is not None and (size := Path(path).stat().st_size) > max_bytes:
+            raise InputError(field, name, f"a file of at most {max_bytes} bytes", f"it has {size}")
+        raw = Path(path).read_bytes() if local else path.read_bytes()
+    except OSError as err:
+        raise InputError(field, name, f"an existing, readable {what}", err.strerror or str(err)) from None
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as err:
+        raise InputError(field, name, f"a {what} of UTF-8 text", f"byte {err.start}: {err.reason}") from None
+
+
+def content_lines(text: str) -> list[tuple[int, str]]:
+    """The lines of a text table that hold content: stripped, without blank and ``#`` lines.
+
+    Parameters
+    ----------
+    text : str
+        The file's text.
+
+    Returns
+    -------
+    list of (int, str)
+        (line number from 1, the stripped line) [-].
+    """
+    lines = ((i, raw.strip()) for i, raw in enumerate(text.splitlines(), start=1))
+    return [(i, line) for i, line in lines if line and not line.startswith("#")]
 
 
 class DegenerateWarning(UserWarning):

@@ -27,7 +27,7 @@ from ._data import data_dir
 from .registry import normalise
 from .constants import c_m_s, h_J_s, hc_eV_nm, k_B_J_K
 from . import schema as _schema
-from .errors import InputError, check_range, did_you_mean
+from .errors import InputError, check_range, content_lines, did_you_mean, read_text_file
 
 SUN_W_m2 = 1000.0            #: irradiance of 1 sun [W m^-2] (common practice)
 LASER_LINE_FWHM_nm = 0.01    #: full width of the triangular line that represents a laser [nm]
@@ -232,21 +232,13 @@ def read_columns(path, value_columns, field="light.path"):
     column : str
         The column name, as spelt in `value_columns` [-].
     """
-    try:
-        text = Path(path).read_text(encoding="utf-8") if isinstance(path, (str, Path)) else path.read_text()
-    except OSError as err:
-        raise InputError(field, str(path), "an existing, readable CSV file", str(err)) from None
-    except UnicodeDecodeError as err:
-        raise InputError(field, str(path), "a CSV file of UTF-8 text", f"byte {err.start}: {err.reason}") from None
+    text = read_text_file(path, field)
 
     def fail(line_no, problem):
         raise InputError(field, str(path), f"line {line_no}: {problem}")
 
     header, rows = None, []
-    for line_no, raw in enumerate(text.splitlines(), start=1):
-        line = raw.strip()
-        if not line or line.startswith("#"):
-            continue
+    for line_no, line in content_lines(text):
         cells = [c.strip() for c in line.split(",")]
         if header is None:
             header = [c.lower() for c in cells]
@@ -435,20 +427,12 @@ def read_spectrum(path, wavelength_column=None, irradiance_column=None, waveleng
         Naming the file, the line and column, and what is allowed.
     """
     name = str(path)
-    try:
-        raw = Path(path).read_bytes() if isinstance(path, (str, Path)) else path.read_bytes()
-    except OSError as err:
-        raise InputError(field, name, "an existing, readable spectrum file", str(err)) from None
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError as err:
-        raise InputError(field, name, "a text file in UTF-8", f"byte {err.start}: {err.reason}") from None
+    text = read_text_file(path, field, "spectrum file")
 
     def fail(line_no, problem, allowed=None):
         raise InputError(field, name, f"line {line_no}: {problem}" + (f"; allowed: {allowed}" if allowed else ""))
 
-    lines = [(i, ln.strip()) for i, ln in enumerate(text.splitlines(), start=1)]
-    lines = [(i, ln) for i, ln in lines if ln and not ln.startswith("#")]
+    lines = content_lines(text)
     if not lines:
         fail(1, "no header or data found")
     head_no, head = lines[0]

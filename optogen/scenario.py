@@ -16,7 +16,7 @@ from typing import Any, Mapping
 import numpy as np
 
 from . import schema
-from .errors import InputError, did_you_mean
+from .errors import InputError, did_you_mean, read_text_file
 
 # Section -> key names, from the schema (optogen.schema declares every key once).
 SECTIONS: dict[str, set[str] | None] = {name: set(schema.section_keys(name)) for name in schema.SECTIONS
@@ -746,16 +746,7 @@ def read_toml(source) -> tuple[dict, str, str, Path]:
         p = Path(source)
         if not p.is_file():
             raise InputError("scenario", str(source), "an existing .toml file")
-        try:
-            raw = p.read_bytes()
-        except OSError as exc:
-            raise InputError("scenario", str(p), "a readable file", exc.strerror or str(exc)) from None
-        if len(raw) > schema.MAX_TEXT_BYTES:
-            raise InputError("scenario", str(p), f"a file of at most {schema.MAX_TEXT_BYTES} bytes")
-        try:
-            text = raw.decode("utf-8")
-        except UnicodeDecodeError as exc:
-            raise InputError("scenario", str(p), "UTF-8 text", f"byte {exc.start}: {exc.reason}") from None
+        text = read_text_file(p, "scenario", "TOML file", max_bytes=schema.MAX_TEXT_BYTES)
         path, base = str(p), p.resolve().parent
     else:
         text = str(source)

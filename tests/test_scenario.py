@@ -12,6 +12,8 @@ import pytest
 from optogen.errors import InputError
 from optogen.scenario import load_scenario, parse_value, unit_of
 
+from conftest import ROOT
+
 BASE = """
 title = "t"
 [absorber]
@@ -161,3 +163,20 @@ def test_scenario_repr_is_short():
     sc = load_scenario(BASE + '\n[sweep]\n"absorber.temperature_K" = [250, 300, 350]\n')
     assert len(repr(sc)) < 300 and "3 points" in repr(sc)
     assert "<table>" in sc._repr_html_()
+
+
+def test_user_text_files_one_reader(tmp_path):
+    # errors.read_text_file reads every user file (scenarios, spectra, optical and lifetime CSVs)
+    from optogen.errors import content_lines, read_text_file
+    src = (ROOT / "scenarios" / "rooftop_n_wafer.toml").read_text(encoding="utf-8")
+    bom = tmp_path / "bom.toml"
+    bom.write_bytes(b"\xef\xbb\xbf" + src.encode("utf-8"))      # a byte-order mark, as some editors write
+    assert load_scenario(bom).get("light.suns") == load_scenario(ROOT / "scenarios" / "rooftop_n_wafer.toml").get("light.suns")
+    big = tmp_path / "big.csv"
+    big.write_bytes(b"x" * 101)
+    with pytest.raises(InputError) as err:
+        read_text_file(big, "light.path", max_bytes=100)
+    assert err.value.field == "light.path" and "at most 100 bytes" in str(err.value)
+    with pytest.raises(InputError, match="readable CSV file"):
+        read_text_file(tmp_path / "missing.csv", "light.path")
+    assert content_lines("# c\n\n a,b \n#x\n1,2\n") == [(3, "a,b"), (5, "1,2")]

@@ -18,7 +18,7 @@ from pathlib import Path
 
 import numpy as np
 
-from optogen.errors import InputError
+from optogen.errors import InputError, content_lines, read_text_file
 
 #: a file larger than this is refused before reading [bytes]
 MAX_FILE_BYTES = 50_000_000
@@ -73,26 +73,12 @@ class Record:
 def _table(path, field: str):
     """(header names, rows [(line_no, floats)]) of a CSV file; InputError naming file and line."""
     p = Path(path)
-    try:
-        size = p.stat().st_size
-    except OSError as err:
-        raise InputError(field, str(p), "an existing, readable CSV file", err.strerror or str(err)) from None
-    if size > MAX_FILE_BYTES:
-        raise InputError(field, str(p), f"a file of at most {MAX_FILE_BYTES} bytes", f"it has {size}")
-    try:
-        text = p.read_text(encoding="utf-8")
-    except OSError as err:
-        raise InputError(field, str(p), "an existing, readable CSV file", err.strerror or str(err)) from None
-    except UnicodeDecodeError as err:
-        raise InputError(field, str(p), "a CSV file of UTF-8 text", f"byte {err.start}: {err.reason}") from None
+    text = read_text_file(p, field, max_bytes=MAX_FILE_BYTES)
     header, rows = None, []
-    for line_no, raw in enumerate(text.splitlines(), start=1):
-        line = raw.strip()
-        if not line or line.startswith("#"):
-            continue
+    for line_no, line in content_lines(text):
         cells = [c.strip() for c in line.split(",")]
         if header is None:
-            header = [c for c in cells]
+            header = cells
             header_line = line_no
             continue
         rows.append((line_no, cells, line))

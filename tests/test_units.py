@@ -138,6 +138,7 @@ def test_each_half_power_is_written_as_a_square_udunits_reads(suffix):
 
 
 def test_squared_names():
+    # the naming rule of DEVELOPERS.md (Nomenclature): the unit suffix of the square after "_squared_"
     assert squared_name("noise_total_A_Hz05") == "noise_total_squared_A2_Hz"
     assert squared_name("detectivity_blip_cm_Hz05_W") == "detectivity_blip_squared_cm2_Hz_W2"
     assert unit_of(squared_name("detectivity_cm_Hz05_W")) == "cm^2 Hz W^-2"

@@ -222,6 +222,8 @@ def test_roots_of_a_store_are_taken_lazily_without_dask(tmp_path):
 def test_squares_that_overflow_are_stored_as_inf_with_a_warning(tmp_path):
     from optogen.errors import PhysicsNoteWarning
     from optogen.pipeline.result import SQUARE_MAX
+    # IEEE 754 binary64 (common practice): largest finite 1.7976931348623157e308, its root 1.34e154
+    assert SQUARE_MAX == pytest.approx(1.3407807929942596e154, rel=1e-15)
     ds = xr.Dataset({"detectivity_blip_cm_Hz05_W": ("light_suns", np.array([1e12, 2.0 * SQUARE_MAX, np.inf]),
                                                     {"units": "cm Hz^(1/2) W^-1", "long_name": "D*_BLIP"})},
                     coords={"light_suns": [0.1, 1.0, 10.0]},
